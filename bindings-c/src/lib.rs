@@ -1,0 +1,1 @@
+//! C ABI for clout. Built in a later step.

@@ -1,0 +1,161 @@
+//! Engine 1: every coalition, in Gray-code order (the oracle).
+//!
+//! Time O(2^n * n * (atoms + nodes)); each step changes one member, so the
+//! per-attribute sums are updated in O(attributes). Scratch: 3 n^2 counts
+//! (pivots by size, swings by the number of swings in the coalition,
+//! minimal winning coalitions by size). Limited to n <= [`MAX_MEMBERS`].
+
+use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
+use crate::count::Counter;
+use crate::limits::MAX_ATTRIBUTES;
+use crate::power::{MemberCounts, RuleCounts};
+use crate::{Engine, Error, Rule};
+
+/// Most members the enumeration engine accepts.
+pub const MAX_MEMBERS: usize = 30;
+
+fn check<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<usize, Error> {
+    let n = rule.members();
+    if n > MAX_MEMBERS {
+        return Err(Error::EngineUnsuitable { engine: Engine::Enumerate });
+    }
+    Ok(n)
+}
+
+pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
+    let n = check(rule)?;
+    Ok(Need { counts: 3 * n * n, indices: 0 })
+}
+
+pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
+    let n = check(rule)?;
+    let per = (n as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
+    Ok((1u128 << n) * per)
+}
+
+struct Sums<'r, W: AsRef<[u64]>> {
+    rule: &'r Rule<W>,
+    sums: [u64; MAX_ATTRIBUTES],
+}
+
+impl<W: AsRef<[u64]>> Sums<'_, W> {
+    fn wins(&self) -> bool {
+        self.rule.passes_with_sums(&self.sums[..self.rule.attributes()])
+    }
+    /// Outcome with member `i` added (`sign = true`) or removed.
+    fn wins_changed(&self, i: usize, add: bool) -> bool {
+        let rule = self.rule;
+        rule.eval(|a| {
+            rule.atoms().get(a).is_some_and(|atom| {
+                let attr = usize::from(atom.attribute);
+                let s = self.sums[attr];
+                let w = rule.weight(attr, i);
+                let s = if add { s.saturating_add(w) } else { s.saturating_sub(w) };
+                s >= atom.quota
+            })
+        })
+    }
+    fn wins_complement(&self, totals: &[u64; MAX_ATTRIBUTES]) -> bool {
+        let mut c = [0u64; MAX_ATTRIBUTES];
+        for (a, slot) in c.iter_mut().enumerate() {
+            *slot = totals[a].saturating_sub(self.sums[a]);
+        }
+        self.rule.passes_with_sums(&c[..self.rule.attributes()])
+    }
+}
+
+pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    members: &mut [MemberCounts<C>],
+    work: Workspace<'_, C>,
+) -> Result<RuleCounts<C>, Error> {
+    let n = check(rule)?;
+    let (pivots, rest) = work.counts.split_at_mut(n * n);
+    let (by_kappa, rest) = rest.split_at_mut(n * n);
+    let minimal_by_size = &mut rest[..n * n];
+    for c in pivots.iter_mut().chain(by_kappa.iter_mut()).chain(minimal_by_size.iter_mut()) {
+        *c = C::ZERO;
+    }
+    let mut totals = [0u64; MAX_ATTRIBUTES];
+    for (a, t) in totals.iter_mut().enumerate().take(rule.attributes()) {
+        *t = rule.total(a);
+    }
+    let mut state = Sums { rule, sums: [0; MAX_ATTRIBUTES] };
+    let mut out = RuleCounts {
+        members: n,
+        winning: C::ZERO,
+        losing: C::ZERO,
+        minimal_winning: Some(C::ZERO),
+        minimal_blocking: Some(C::ZERO),
+        smallest_winning: None,
+        proper: true,
+        strong: true,
+        factorial: None,
+        engine: Engine::Enumerate,
+    };
+    let mut mask: u64 = 0;
+    let steps: u64 = 1 << n;
+    for step in 0..steps {
+        if step > 0 {
+            // Gray code: flip the member at the lowest set bit of `step`.
+            let i = step.trailing_zeros() as usize;
+            mask ^= 1 << i;
+            let add = mask & (1 << i) != 0;
+            for a in 0..rule.attributes() {
+                let w = rule.weight(a, i);
+                state.sums[a] = if add { state.sums[a] + w } else { state.sums[a] - w };
+            }
+        }
+        let size = mask.count_ones() as usize;
+        if state.wins() {
+            out.winning = out.winning.add(C::ONE)?;
+            out.smallest_winning = Some(out.smallest_winning.map_or(size, |s| s.min(size)));
+            let mut swings: u64 = 0;
+            for i in (0..n).filter(|i| mask & (1 << i) != 0) {
+                if !state.wins_changed(i, false) {
+                    swings |= 1 << i;
+                }
+            }
+            let kappa = swings.count_ones() as usize;
+            for i in (0..n).filter(|i| swings & (1 << i) != 0) {
+                members[i].swings = members[i].swings.add(C::ONE)?;
+                bump(pivots, i * n + size - 1)?;
+                bump(by_kappa, i * n + kappa - 1)?;
+            }
+            if swings == mask {
+                out.minimal_winning = Some(out.minimal_winning.unwrap_or(C::ZERO).add(C::ONE)?);
+                for i in (0..n).filter(|i| mask & (1 << i) != 0) {
+                    bump(minimal_by_size, i * n + size - 1)?;
+                }
+            }
+            if state.wins_complement(&totals) {
+                out.proper = false;
+            }
+        } else {
+            out.losing = out.losing.add(C::ONE)?;
+            if !state.wins_complement(&totals) {
+                out.strong = false;
+            }
+            let maximal = (0..n).filter(|i| mask & (1 << i) == 0).all(|i| state.wins_changed(i, true));
+            if maximal {
+                out.minimal_blocking = Some(out.minimal_blocking.unwrap_or(C::ZERO).add(C::ONE)?);
+            }
+        }
+    }
+    for (i, m) in members.iter_mut().enumerate() {
+        let row = i * n..(i + 1) * n;
+        let (ss, numerator) = shapley_from_sizes(n, &pivots[row.clone()])?;
+        m.shapley_shubik = ss;
+        m.shapley_shubik_numerator = numerator;
+        m.johnston_raw = Some(reciprocal_sum(n, &by_kappa[row.clone()]));
+        m.deegan_packel_raw = Some(reciprocal_sum(n, &minimal_by_size[row.clone()]));
+        m.minimal_winning = Some(sum_counts(&minimal_by_size[row])?);
+    }
+    Ok(out)
+}
+
+fn bump<C: Counter>(counts: &mut [C], at: usize) -> Result<(), Error> {
+    let slot = counts.get_mut(at).ok_or(Error::ScratchTooSmall { needed: at + 1, given: 0 })?;
+    *slot = slot.add(C::ONE)?;
+    Ok(())
+}

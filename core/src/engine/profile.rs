@@ -1,0 +1,299 @@
+//! Engine 2a: profiles of member types.
+//!
+//! Members with identical weights in every attribute the rule uses form a
+//! type; a coalition's outcome depends only on how many of each type it
+//! holds (its profile). With T types of sizes c_1..c_T the engine visits
+//! Π(c_t + 1) profiles, each weighted by Π C(c_t, p_t), and evaluates the
+//! rule O(T) times per profile: a 536-member two-chamber rule has 3 types
+//! and 88,000 profiles instead of 2^536 coalitions.
+//!
+//! Every index is exact, including the minimal-coalition ones. Scratch:
+//! Σ(c_t + 1) binomials, T + 1 running products and 3 T n counts;
+//! 3n + 1 indices (member order, type starts, the profile odometer).
+
+use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
+use crate::count::{binomial, Counter};
+use crate::limits::MAX_ATTRIBUTES;
+use crate::power::{MemberCounts, RuleCounts};
+use crate::{Engine, Error, Rule};
+
+/// Sorts member indices so that members of one type are adjacent, and
+/// writes type boundaries into `starts` (T + 1 entries). Returns T.
+pub(crate) fn group_types<W: AsRef<[u64]>>(rule: &Rule<W>, mask: u64, order: &mut [u32], starts: &mut [u32]) -> usize {
+    let n = rule.members();
+    for (i, o) in order.iter_mut().enumerate().take(n) {
+        *o = i as u32;
+    }
+    let column_cmp = |x: &u32, y: &u32| {
+        for a in (0..rule.attributes()).filter(|a| mask & (1 << a) != 0) {
+            let o = rule.weight(a, *x as usize).cmp(&rule.weight(a, *y as usize));
+            if o.is_ne() {
+                return o;
+            }
+        }
+        core::cmp::Ordering::Equal
+    };
+    order[..n].sort_unstable_by(|x, y| column_cmp(x, y).then(x.cmp(y)));
+    let mut types = 0;
+    for i in 0..n {
+        if i == 0 || column_cmp(&order[i - 1], &order[i]).is_ne() {
+            starts[types] = i as u32;
+            types += 1;
+        }
+    }
+    starts[types] = n as u32;
+    types
+}
+
+/// Most types the profile engine accepts.
+pub const MAX_TYPES: usize = 4096;
+
+/// Number of types and Π(c_t + 1) (saturating), computed without scratch;
+/// `None` beyond [`MAX_TYPES`].
+fn shape<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<(usize, u128)> {
+    // Without scratch we cannot sort; count types by first occurrence. This
+    // is O(n * T) and only used for planning.
+    let n = rule.members();
+    let mask = rule.used_attributes();
+    let same = |x: usize, y: usize| {
+        (0..rule.attributes()).filter(|a| mask & (1 << a) != 0).all(|a| rule.weight(a, x) == rule.weight(a, y))
+    };
+    let mut types = 0usize;
+    let mut product: u128 = 1;
+    // Representatives are the first members of their type.
+    for i in 0..n {
+        if (0..i).any(|j| same(i, j)) {
+            continue;
+        }
+        types += 1;
+        let c = (i..n).filter(|&j| same(i, j)).count() as u128;
+        product = product.saturating_mul(c + 1);
+        if types > MAX_TYPES {
+            return None;
+        }
+    }
+    Some((types, product))
+}
+
+pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
+    let n = rule.members();
+    let (types, _) = shape(rule).ok_or(Error::EngineUnsuitable { engine: Engine::Profile })?;
+    // binomials Σ(c_t + 1) = n + T, products T + 1, per-type tables 3 T n.
+    Ok(Need { counts: n + 2 * types + 1 + 3 * types * n, indices: 3 * n + 1 })
+}
+
+pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
+    let (types, profiles) = shape(rule).ok_or(Error::EngineUnsuitable { engine: Engine::Profile })?;
+    let per = (2 * types as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
+    Ok(profiles.saturating_mul(per))
+}
+
+struct Types<'a> {
+    count: usize,
+    /// Member indices grouped by type.
+    order: &'a [u32],
+    starts: &'a [u32],
+}
+
+impl Types<'_> {
+    fn size(&self, t: usize) -> usize {
+        (self.starts[t + 1] - self.starts[t]) as usize
+    }
+    fn representative(&self, t: usize) -> usize {
+        self.order[self.starts[t] as usize] as usize
+    }
+}
+
+pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    members: &mut [MemberCounts<C>],
+    work: Workspace<'_, C>,
+) -> Result<RuleCounts<C>, Error> {
+    let n = rule.members();
+    let attributes = rule.attributes();
+    let mask = rule.used_attributes();
+    let (order, rest) = work.indices.split_at_mut(n);
+    let (starts, digits) = rest.split_at_mut(n + 1);
+    let t_count = group_types(rule, mask, order, starts);
+    let types = Types { count: t_count, order, starts };
+    let digits = &mut digits[..t_count];
+
+    // Scratch layout: binomials (offset per type), running products, tables.
+    let (binoms, rest) = work.counts.split_at_mut(n + t_count);
+    let (products, rest) = rest.split_at_mut(t_count + 1);
+    let (pivots, rest) = rest.split_at_mut(t_count * n);
+    let (by_kappa, rest) = rest.split_at_mut(t_count * n);
+    let minimal_by_size = &mut rest[..t_count * n];
+    for c in pivots.iter_mut().chain(by_kappa.iter_mut()).chain(minimal_by_size.iter_mut()) {
+        *c = C::ZERO;
+    }
+    // binomial table of type t starts at starts[t] + t and has c_t + 1 entries.
+    for t in 0..t_count {
+        let c = types.size(t);
+        let base = types.starts[t] as usize + t;
+        for p in 0..=c {
+            binoms[base + p] = binomial(c as u64, p as u64)?;
+        }
+    }
+    let binom = |binoms: &[C], t: usize, p: usize| binoms[types.starts[t] as usize + t + p];
+
+    // Weights of each type's representative in each attribute.
+    let weight = |t: usize, a: usize| rule.weight(a, types.representative(t));
+    let mut totals = [0u64; MAX_ATTRIBUTES];
+    for (a, slot) in totals.iter_mut().enumerate().take(attributes) {
+        *slot = rule.total(a);
+    }
+
+    let mut out = RuleCounts {
+        members: n,
+        winning: C::ZERO,
+        losing: C::ZERO,
+        minimal_winning: Some(C::ZERO),
+        minimal_blocking: Some(C::ZERO),
+        smallest_winning: None,
+        proper: true,
+        strong: true,
+        factorial: None,
+        engine: Engine::Profile,
+    };
+    for d in digits.iter_mut() {
+        *d = 0;
+    }
+    for p in products.iter_mut() {
+        *p = C::ONE;
+    }
+    let mut sums = [0u64; MAX_ATTRIBUTES];
+    let mut size = 0usize;
+    let passes = |sums: &[u64; MAX_ATTRIBUTES]| rule.passes_with_sums(&sums[..attributes]);
+    let shifted = |sums: &[u64; MAX_ATTRIBUTES], t: usize, add: bool| {
+        let mut s = *sums;
+        for (a, slot) in s.iter_mut().enumerate().take(attributes) {
+            let w = weight(t, a);
+            *slot = if add { slot.saturating_add(w) } else { slot.saturating_sub(w) };
+        }
+        s
+    };
+
+    loop {
+        let mult = products[t_count];
+        let win = passes(&sums);
+        let mut complement = [0u64; MAX_ATTRIBUTES];
+        for a in 0..attributes {
+            complement[a] = totals[a].saturating_sub(sums[a]);
+        }
+        if win {
+            out.winning = out.winning.add(mult)?;
+            out.smallest_winning = Some(out.smallest_winning.map_or(size, |s| s.min(size)));
+            // kappa: number of individual swings in each coalition of this profile.
+            let mut kappa = 0usize;
+            let mut all_swing = true;
+            for t in 0..t_count {
+                let p = digits[t] as usize;
+                if p == 0 {
+                    continue;
+                }
+                if passes(&shifted(&sums, t, false)) {
+                    all_swing = false;
+                } else {
+                    kappa += p;
+                }
+            }
+            for t in 0..t_count {
+                let p = digits[t] as usize;
+                if p == 0 {
+                    continue;
+                }
+                let swing = kappa > 0 && !passes(&shifted(&sums, t, false));
+                if !swing && !all_swing {
+                    continue;
+                }
+                // Coalitions of this profile containing one given member of
+                // type t: mult * p / c_t = C(c_t - 1, p - 1) Π_{u != t} C(c_u, p_u).
+                let (per_member, r) = mult.mul_u64(p as u64)?.div_rem_u64(types.size(t) as u64);
+                debug_assert_eq!(r, 0);
+                if swing {
+                    let row = t * n;
+                    pivots[row + size - 1] = pivots[row + size - 1].add(per_member)?;
+                    by_kappa[row + kappa - 1] = by_kappa[row + kappa - 1].add(per_member)?;
+                }
+                if all_swing {
+                    let row = t * n;
+                    minimal_by_size[row + size - 1] = minimal_by_size[row + size - 1].add(per_member)?;
+                }
+            }
+            if all_swing {
+                out.minimal_winning = Some(out.minimal_winning.unwrap_or(C::ZERO).add(mult)?);
+            }
+            if passes(&complement) {
+                out.proper = false;
+            }
+        } else {
+            out.losing = out.losing.add(mult)?;
+            if !passes(&complement) {
+                out.strong = false;
+            }
+            let maximal = (0..t_count)
+                .filter(|&t| (digits[t] as usize) < types.size(t))
+                .all(|t| passes(&shifted(&sums, t, true)));
+            if maximal {
+                out.minimal_blocking = Some(out.minimal_blocking.unwrap_or(C::ZERO).add(mult)?);
+            }
+        }
+
+        // Advance the odometer: the last type is the fastest digit.
+        let mut t = t_count;
+        loop {
+            if t == 0 {
+                return finish(rule, &types, members, out, pivots, by_kappa, minimal_by_size);
+            }
+            t -= 1;
+            let c = types.size(t);
+            if (digits[t] as usize) < c {
+                digits[t] += 1;
+                size += 1;
+                sums = shifted(&sums, t, true);
+                break;
+            }
+            // Wrap this digit back to zero.
+            for (a, slot) in sums.iter_mut().enumerate().take(attributes) {
+                *slot = slot.saturating_sub(weight(t, a).saturating_mul(c as u64));
+            }
+            size -= c;
+            digits[t] = 0;
+        }
+        for u in t..t_count {
+            products[u + 1] = products[u].mul(binom(binoms, u, digits[u] as usize))?;
+        }
+    }
+}
+
+fn finish<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    types: &Types<'_>,
+    members: &mut [MemberCounts<C>],
+    out: RuleCounts<C>,
+    pivots: &[C],
+    by_kappa: &[C],
+    minimal_by_size: &[C],
+) -> Result<RuleCounts<C>, Error> {
+    let n = rule.members();
+    for t in 0..types.count {
+        let row = t * n..(t + 1) * n;
+        let swings = sum_counts(&pivots[row.clone()])?;
+        let (ss, numerator) = shapley_from_sizes(n, &pivots[row.clone()])?;
+        let value = MemberCounts {
+            swings,
+            shapley_shubik: ss,
+            shapley_shubik_numerator: numerator,
+            minimal_winning: Some(sum_counts(&minimal_by_size[row.clone()])?),
+            deegan_packel_raw: Some(reciprocal_sum(n, &minimal_by_size[row.clone()])),
+            johnston_raw: Some(reciprocal_sum(n, &by_kappa[row])),
+            veto: false,
+            dictator: false,
+        };
+        for &m in &types.order[types.starts[t] as usize..types.starts[t + 1] as usize] {
+            members[m as usize] = value;
+        }
+    }
+    Ok(out)
+}

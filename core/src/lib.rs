@@ -1,0 +1,95 @@
+//! # clout-core
+//!
+//! The `no_std` heart of clout: compound voting rules, ballots, and exact
+//! voting power.
+//!
+//! * [`Rule`]: members with integer weight attributes, threshold atoms
+//!   ("sum of seats over the yes-voters >= 58") and a monotone AND/OR
+//!   formula over them. [`quota`] turns "more than half", "at least 65%",
+//!   "fewer than 4 against" into exact integer quotas.
+//! * [`decide`] and [`critical`]: the outcome of one vote, its tallies, and
+//!   the members whose switch would flip it. No heap, nanoseconds.
+//! * [`engine`]: exact swing counts and pivot counts by three engines
+//!   (enumeration, type profiles, capped generating functions), chosen by
+//!   [`planner::plan`] or forced by the caller.
+//! * [`PowerTable`]: every standard index from those counts (normalized and
+//!   absolute Banzhaf, Shapley-Shubik, Coleman, Johnston, Deegan-Packel,
+//!   Holler) and the dummy / veto / dictator flags; [`RuleCounts`] for
+//!   winning coalitions, passage probability, proper / strong / decisive.
+//!
+//! ## Model
+//! Indices measure a priori power: every member votes yes or no
+//! independently with equal chance. They are not predictions of behaviour.
+//!
+//! ## Storage and limits
+//! Without features nothing allocates: the caller owns the weight table,
+//! the result arrays and the engine scratch ([`engine::need`] says how much;
+//! too little is [`Error::ScratchTooSmall`]). Feature `alloc` adds
+//! [`analyze`], which allocates for you; `std` adds nothing else yet. Limits
+//! are in [`limits`].
+//!
+//! | operation | time | space |
+//! | --- | --- | --- |
+//! | [`Rule::passes`], [`decide`] | O(yes-voters * attributes + nodes) | stack, < 2 KiB |
+//! | [`critical`] | O(n * (atoms + nodes)) | stack |
+//! | enumeration | O(2^n n (atoms + nodes)), n <= 30 | 3 n^2 counts |
+//! | profiles | O(Π(c_t + 1) T (atoms + nodes)) | ~(3T + 1) n counts |
+//! | dense, one attribute | O(n^2 q) | (n + 1)(q + 1) counts |
+//!
+//! ## Overflow
+//! Weight sums are checked when a rule is built; counts use the caller's
+//! [`Counter`] (`u64`, `u128`, [`Count1024`] or any [`Wide`]) with checked
+//! arithmetic, so an overflow is [`Error::CountOverflow`], never a wrap.
+//!
+//! ```
+//! use clout_core::{engine, Coalition, Count1024, PowerTable, Rule};
+//!
+//! // [12; 4, 4, 4, 2, 2, 1]
+//! let weights = [4u64, 4, 4, 2, 2, 1];
+//! let rule = Rule::weighted(12, &weights[..]).unwrap();
+//! assert!(rule.passes(&Coalition::<1>::from_members(&[0, 1, 2]).unwrap()).unwrap());
+//!
+//! let plan = clout_core::planner::plan(&rule, u128::MAX).unwrap();
+//! let need = engine::need(&rule, plan.engine).unwrap();
+//! let mut counts = [0u128; 512];
+//! let mut indices = [0u32; 64];
+//! assert!(need.counts <= counts.len() && need.indices <= indices.len());
+//! let mut members = [clout_core::MemberCounts::<u128>::EMPTY; 6];
+//! let work = engine::Workspace { counts: &mut counts, indices: &mut indices };
+//! let totals = engine::try_count(&rule, plan.engine, &mut members, work).unwrap();
+//! let table = PowerTable::new(&totals, &members);
+//! assert_eq!(members[0].swings, 10);
+//! assert!(table.is_dummy(5));
+//! ```
+
+#![cfg_attr(not(any(test, feature = "std")), no_std)]
+#![deny(unsafe_code)]
+#![warn(missing_docs)]
+
+#[cfg(feature = "alloc")]
+extern crate alloc;
+
+mod coalition;
+pub mod count;
+mod decide;
+pub mod engine;
+mod error;
+pub mod limits;
+mod power;
+pub mod planner;
+pub mod quota;
+mod rule;
+
+#[cfg(feature = "alloc")]
+mod analysis;
+
+pub use coalition::{Coalition, Members};
+pub use count::{Count1024, Counter, Wide};
+pub use decide::{critical, decide, AtomTally, Decision};
+pub use engine::Engine;
+pub use error::Error;
+pub use power::{MemberCounts, PowerTable, RuleCounts};
+pub use rule::{Atom, Node, Rule};
+
+#[cfg(feature = "alloc")]
+pub use analysis::{analyze, analyze_with, Analysis};
