@@ -35,11 +35,18 @@ pub fn analyze<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<Analysis<C
 }
 
 /// Counts with a forced engine.
-pub fn analyze_with<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, engine: Engine) -> Result<Analysis<C>, Error> {
+pub fn analyze_with<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    engine: Engine,
+) -> Result<Analysis<C>, Error> {
     let mut p = plan(rule, u128::MAX).unwrap_or(Plan {
         engine,
         cost: 0,
-        costs: [(Engine::Profile, None), (Engine::Dense, None), (Engine::Enumerate, None)],
+        costs: [
+            (Engine::Profile, None),
+            (Engine::Dense, None),
+            (Engine::Enumerate, None),
+        ],
     });
     p.engine = engine;
     p.cost = engine::cost(rule, engine)?;
@@ -51,7 +58,14 @@ fn run<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, plan: Plan) -> Result<Analys
     let mut counts = vec![C::ZERO; need.counts];
     let mut indices = vec![0u32; need.indices];
     let mut members = vec![MemberCounts::EMPTY; rule.members()];
-    let work = Workspace { counts: &mut counts, indices: &mut indices };
+    let work = Workspace {
+        counts: &mut counts,
+        indices: &mut indices,
+    };
     let totals = engine::try_count(rule, plan.engine, &mut members, work)?;
-    Ok(Analysis { rule: totals, members, plan })
+    Ok(Analysis {
+        rule: totals,
+        members,
+        plan,
+    })
 }

@@ -32,7 +32,10 @@ impl<const W: usize> Coalition<W> {
     /// The first `n` members, or an error if `n` exceeds the capacity.
     pub fn first(n: usize) -> Result<Self, Error> {
         if n > Self::CAPACITY {
-            return Err(Error::BallotMismatch { members: n, capacity: Self::CAPACITY });
+            return Err(Error::BallotMismatch {
+                members: n,
+                capacity: Self::CAPACITY,
+            });
         }
         let mut c = Self::EMPTY;
         for (i, word) in c.words.iter_mut().enumerate() {
@@ -67,10 +70,10 @@ impl<const W: usize> Coalition<W> {
 
     /// Adds member `i`.
     pub fn insert(&mut self, i: usize) -> Result<(), Error> {
-        let word = self
-            .words
-            .get_mut(i / 64)
-            .ok_or(Error::BallotMismatch { members: i + 1, capacity: Self::CAPACITY })?;
+        let word = self.words.get_mut(i / 64).ok_or(Error::BallotMismatch {
+            members: i + 1,
+            capacity: Self::CAPACITY,
+        })?;
         *word |= 1 << (i % 64);
         Ok(())
     }
@@ -106,7 +109,11 @@ impl<const W: usize> Coalition<W> {
 
     /// The members of the set, in increasing order.
     pub fn iter(&self) -> Members<'_, W> {
-        Members { words: &self.words, index: 0, current: self.words.first().copied().unwrap_or(0) }
+        Members {
+            words: &self.words,
+            index: 0,
+            current: self.words.first().copied().unwrap_or(0),
+        }
     }
 
     /// Whether any member at or beyond `n` is in the set.

@@ -364,8 +364,14 @@ mod tests {
     fn pow2_and_display() {
         let p = Count1024::pow2(200).unwrap();
         // 2^200 (a mathematical identity, checked against Python's int).
-        assert_eq!(p.to_string(), "1606938044258990275541962092341162602522202993782792835301376");
+        assert_eq!(
+            p.to_string(),
+            "1606938044258990275541962092341162602522202993782792835301376"
+        );
         assert_eq!(Count1024::pow2(1024), Err(Error::CountOverflow));
-        assert_eq!(ratio(Count1024::pow2(1000).unwrap(), Count1024::pow2(999).unwrap()), 2.0);
+        assert_eq!(
+            ratio(Count1024::pow2(1000).unwrap(), Count1024::pow2(999).unwrap()),
+            2.0
+        );
     }
 }

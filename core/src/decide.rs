@@ -29,14 +29,21 @@ pub struct Decision {
 }
 
 /// Decides the ballot `yes` under `rule`.
-pub fn decide<W: AsRef<[u64]>, const B: usize>(rule: &Rule<W>, yes: &Coalition<B>) -> Result<Decision, Error> {
+pub fn decide<W: AsRef<[u64]>, const B: usize>(
+    rule: &Rule<W>,
+    yes: &Coalition<B>,
+) -> Result<Decision, Error> {
     let mut sums = [0u64; MAX_ATTRIBUTES];
     rule.yes_sums(yes, &mut sums)?;
     let mut tallies = heapless::Vec::new();
     for atom in rule.atoms() {
         let sum = sums.get(usize::from(atom.attribute)).copied().unwrap_or(0);
         // Capacity equals MAX_ATOMS, which bounds rule.atoms().
-        let _ = tallies.push(AtomTally { sum, quota: atom.quota, met: sum >= atom.quota });
+        let _ = tallies.push(AtomTally {
+            sum,
+            quota: atom.quota,
+            met: sum >= atom.quota,
+        });
     }
     let passed = rule.eval(|i| tallies.get(i).is_some_and(|t| t.met));
     Ok(Decision { passed, tallies })
@@ -48,7 +55,10 @@ pub fn decide<W: AsRef<[u64]>, const B: usize>(rule: &Rule<W>, yes: &Coalition<B
 /// A yes-voter is critical in a passing ballot when the motion fails without
 /// them; a no-voter is critical in a failing ballot when their yes would pass
 /// it. (Monotonicity means nobody else can flip the outcome.)
-pub fn critical<W: AsRef<[u64]>, const B: usize>(rule: &Rule<W>, yes: &Coalition<B>) -> Result<Coalition<B>, Error> {
+pub fn critical<W: AsRef<[u64]>, const B: usize>(
+    rule: &Rule<W>,
+    yes: &Coalition<B>,
+) -> Result<Coalition<B>, Error> {
     let mut sums = [0u64; MAX_ATTRIBUTES];
     rule.yes_sums(yes, &mut sums)?;
     let passed = rule.passes_with_sums(&sums[..rule.attributes()]);
@@ -65,7 +75,11 @@ pub fn critical<W: AsRef<[u64]>, const B: usize>(rule: &Rule<W>, yes: &Coalition
                 let w = rule.weight(attr, i);
                 let s = sums.get(attr).copied().unwrap_or(0);
                 // The totals were checked for overflow, so these cannot wrap.
-                let s = if voting_yes { s.saturating_sub(w) } else { s.saturating_add(w) };
+                let s = if voting_yes {
+                    s.saturating_sub(w)
+                } else {
+                    s.saturating_add(w)
+                };
                 s >= atom.quota
             })
         });

@@ -75,8 +75,8 @@ mod decide;
 pub mod engine;
 mod error;
 pub mod limits;
-mod power;
 pub mod planner;
+mod power;
 pub mod quota;
 mod rule;
 

@@ -24,7 +24,11 @@ pub struct Plan {
 /// `budget` steps, and with [`Error::EngineUnsuitable`] when no engine
 /// applies.
 pub fn plan<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Error> {
-    let mut costs = [(Engine::Profile, None), (Engine::Dense, None), (Engine::Enumerate, None)];
+    let mut costs = [
+        (Engine::Profile, None),
+        (Engine::Dense, None),
+        (Engine::Enumerate, None),
+    ];
     let mut best: Option<(Engine, u128)> = None;
     for (slot, engine) in costs.iter_mut().zip(Engine::ALL) {
         let c = cost(rule, engine).ok();
@@ -35,9 +39,14 @@ pub fn plan<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Error
             }
         }
     }
-    let (engine, cost) = best.ok_or(Error::EngineUnsuitable { engine: Engine::Enumerate })?;
+    let (engine, cost) = best.ok_or(Error::EngineUnsuitable {
+        engine: Engine::Enumerate,
+    })?;
     if cost > budget {
-        return Err(Error::TooCostly { estimate: cost, budget });
+        return Err(Error::TooCostly {
+            estimate: cost,
+            budget,
+        });
     }
     Ok(Plan { engine, cost, costs })
 }

@@ -130,7 +130,9 @@ impl<'a, C: Counter> PowerTable<'a, C> {
 
     /// Normalized Banzhaf index; 0 for every member when nobody swings.
     pub fn banzhaf(&self, i: usize) -> f64 {
-        let total = (0..self.members.len()).map(|j| self.penrose(j)).fold(0.0, |a, b| a + b);
+        let total = (0..self.members.len())
+            .map(|j| self.penrose(j))
+            .fold(0.0, |a, b| a + b);
         if total == 0.0 {
             0.0
         } else {

@@ -45,7 +45,10 @@ pub enum Bound {
 
 fn check_share(numerator: u64, denominator: u64) -> Result<(), Error> {
     if denominator == 0 || numerator > denominator {
-        Err(Error::BadFraction { numerator, denominator })
+        Err(Error::BadFraction {
+            numerator,
+            denominator,
+        })
     } else {
         Ok(())
     }
@@ -74,12 +77,20 @@ pub fn threshold(cmp: Comparison, bound: Bound, total: u64) -> Result<u64, Error
         (Comparison::AtMost | Comparison::LessThan, _) => Err(Error::NonMonotone),
         (Comparison::AtLeast, Bound::Amount(k)) => Ok(k),
         (Comparison::MoreThan, Bound::Amount(k)) => k.checked_add(1).ok_or(Error::CountOverflow),
-        (Comparison::AtLeast, Bound::Share { numerator, denominator }) => {
-            at_least_share(numerator, denominator, total)
-        }
-        (Comparison::MoreThan, Bound::Share { numerator, denominator }) => {
-            more_than_share(numerator, denominator, total)
-        }
+        (
+            Comparison::AtLeast,
+            Bound::Share {
+                numerator,
+                denominator,
+            },
+        ) => at_least_share(numerator, denominator, total),
+        (
+            Comparison::MoreThan,
+            Bound::Share {
+                numerator,
+                denominator,
+            },
+        ) => more_than_share(numerator, denominator, total),
     }
 }
 
@@ -93,12 +104,24 @@ pub fn against(cmp: Comparison, bound: Bound, total: u64) -> Result<u64, Error> 
         (Comparison::AtLeast | Comparison::MoreThan, _) => return Err(Error::NonMonotone),
         (Comparison::AtMost, Bound::Amount(k)) => Some(k),
         (Comparison::LessThan, Bound::Amount(k)) => k.checked_sub(1),
-        (Comparison::AtMost, Bound::Share { numerator, denominator }) => {
+        (
+            Comparison::AtMost,
+            Bound::Share {
+                numerator,
+                denominator,
+            },
+        ) => {
             // no <= share*T  <=>  no <= floor(share*T)
             check_share(numerator, denominator)?;
             Some(((u128::from(total) * u128::from(numerator)) / u128::from(denominator)) as u64)
         }
-        (Comparison::LessThan, Bound::Share { numerator, denominator }) => {
+        (
+            Comparison::LessThan,
+            Bound::Share {
+                numerator,
+                denominator,
+            },
+        ) => {
             // no < share*T  <=>  no <= ceil(share*T) - 1
             let c = at_least_share(numerator, denominator, total)?;
             c.checked_sub(1)
@@ -132,11 +155,20 @@ mod tests {
 
     #[test]
     fn non_monotone_and_bad_shares() {
-        assert_eq!(threshold(Comparison::LessThan, Bound::Amount(10), 50), Err(Error::NonMonotone));
-        assert_eq!(against(Comparison::MoreThan, Bound::Amount(1), 5), Err(Error::NonMonotone));
+        assert_eq!(
+            threshold(Comparison::LessThan, Bound::Amount(10), 50),
+            Err(Error::NonMonotone)
+        );
+        assert_eq!(
+            against(Comparison::MoreThan, Bound::Amount(1), 5),
+            Err(Error::NonMonotone)
+        );
         assert!(matches!(at_least_share(3, 2, 10), Err(Error::BadFraction { .. })));
         assert!(matches!(at_least_share(1, 0, 10), Err(Error::BadFraction { .. })));
-        assert_eq!(threshold(Comparison::MoreThan, Bound::Amount(u64::MAX), 5), Err(Error::CountOverflow));
+        assert_eq!(
+            threshold(Comparison::MoreThan, Bound::Amount(u64::MAX), 5),
+            Err(Error::CountOverflow)
+        );
     }
 
     proptest::proptest! {

@@ -56,32 +56,54 @@ impl<W: AsRef<[u64]>> Rule<W> {
             return Err(Error::NoMembers);
         }
         if members > MAX_MEMBERS {
-            return Err(Error::TooManyMembers { members, limit: MAX_MEMBERS });
+            return Err(Error::TooManyMembers {
+                members,
+                limit: MAX_MEMBERS,
+            });
         }
         let table = weights.as_ref();
         if table.len() % members != 0 {
-            return Err(Error::WeightTableShape { len: table.len(), members });
+            return Err(Error::WeightTableShape {
+                len: table.len(),
+                members,
+            });
         }
         let attributes = table.len() / members;
         if attributes > MAX_ATTRIBUTES {
-            return Err(Error::TooManyAttributes { attributes, limit: MAX_ATTRIBUTES });
+            return Err(Error::TooManyAttributes {
+                attributes,
+                limit: MAX_ATTRIBUTES,
+            });
         }
         for (a, row) in table.chunks_exact(members).enumerate() {
             row.iter()
                 .try_fold(0u64, |acc, &w| acc.checked_add(w))
                 .ok_or(Error::WeightSumOverflow { attribute: a })?;
         }
-        let atoms_vec = heapless::Vec::from_slice(atoms)
-            .map_err(|_| Error::TooManyAtoms { atoms: atoms.len(), limit: MAX_ATOMS })?;
+        let atoms_vec = heapless::Vec::from_slice(atoms).map_err(|_| Error::TooManyAtoms {
+            atoms: atoms.len(),
+            limit: MAX_ATOMS,
+        })?;
         for (i, atom) in atoms.iter().enumerate() {
             if usize::from(atom.attribute) >= attributes {
-                return Err(Error::UnknownAttribute { atom: i, attribute: usize::from(atom.attribute) });
+                return Err(Error::UnknownAttribute {
+                    atom: i,
+                    attribute: usize::from(atom.attribute),
+                });
             }
         }
-        let formula_vec = heapless::Vec::from_slice(formula)
-            .map_err(|_| Error::TooManyNodes { nodes: formula.len(), limit: MAX_NODES })?;
+        let formula_vec = heapless::Vec::from_slice(formula).map_err(|_| Error::TooManyNodes {
+            nodes: formula.len(),
+            limit: MAX_NODES,
+        })?;
         check_formula(formula, atoms.len())?;
-        Ok(Rule { members, attributes, weights, atoms: atoms_vec, formula: formula_vec })
+        Ok(Rule {
+            members,
+            attributes,
+            weights,
+            atoms: atoms_vec,
+            formula: formula_vec,
+        })
     }
 
     /// The weighted game `[quota; w1, ..., wn]`: one attribute, one atom.
@@ -128,7 +150,9 @@ impl<W: AsRef<[u64]>> Rule<W> {
 
     /// Sum of attribute `a` over all members (checked at construction).
     pub fn total(&self, attribute: usize) -> u64 {
-        self.attribute_weights(attribute).iter().fold(0u64, |s, &w| s.saturating_add(w))
+        self.attribute_weights(attribute)
+            .iter()
+            .fold(0u64, |s, &w| s.saturating_add(w))
     }
 
     /// The atoms.
@@ -180,9 +204,16 @@ impl<W: AsRef<[u64]>> Rule<W> {
     }
 
     /// Writes the yes-sum of every used attribute into `sums` (unused: 0).
-    pub fn yes_sums<const B: usize>(&self, yes: &Coalition<B>, sums: &mut [u64; MAX_ATTRIBUTES]) -> Result<(), Error> {
+    pub fn yes_sums<const B: usize>(
+        &self,
+        yes: &Coalition<B>,
+        sums: &mut [u64; MAX_ATTRIBUTES],
+    ) -> Result<(), Error> {
         if self.members > Coalition::<B>::CAPACITY || yes.has_member_at_or_beyond(self.members) {
-            return Err(Error::BallotMismatch { members: self.members, capacity: Coalition::<B>::CAPACITY.min(self.members) });
+            return Err(Error::BallotMismatch {
+                members: self.members,
+                capacity: Coalition::<B>::CAPACITY.min(self.members),
+            });
         }
         let used = self.used_attributes();
         for (a, slot) in sums.iter_mut().enumerate().take(self.attributes) {
@@ -192,7 +223,10 @@ impl<W: AsRef<[u64]>> Rule<W> {
             }
             let row = self.attribute_weights(a);
             // No overflow: the whole row's sum was checked at construction.
-            *slot = yes.iter().map(|i| row.get(i).copied().unwrap_or(0)).fold(0u64, u64::wrapping_add);
+            *slot = yes
+                .iter()
+                .map(|i| row.get(i).copied().unwrap_or(0))
+                .fold(0u64, u64::wrapping_add);
         }
         Ok(())
     }
@@ -244,7 +278,10 @@ fn check_formula(formula: &[Node], atoms: usize) -> Result<(), Error> {
         match *node {
             Node::Atom(i) => {
                 if usize::from(i) >= atoms {
-                    return Err(Error::UnknownAtom { node: n, atom: usize::from(i) });
+                    return Err(Error::UnknownAtom {
+                        node: n,
+                        atom: usize::from(i),
+                    });
                 }
                 depths[height] = 0;
                 height += 1;
@@ -260,7 +297,10 @@ fn check_formula(formula: &[Node], atoms: usize) -> Result<(), Error> {
                 let deepest = depths[height - k..height].iter().copied().max().unwrap_or(0);
                 let depth = usize::from(deepest) + 1;
                 if depth > MAX_DEPTH {
-                    return Err(Error::TooDeep { depth, limit: MAX_DEPTH });
+                    return Err(Error::TooDeep {
+                        depth,
+                        limit: MAX_DEPTH,
+                    });
                 }
                 height -= k;
                 depths[height] = depth as u8;
@@ -283,35 +323,71 @@ mod tests {
         let w = [1u64, 2, 3];
         assert_eq!(Rule::new(0, &w[..], &[], &[]).unwrap_err(), Error::NoMembers);
         assert_eq!(
-            Rule::new(2, &w[..], &[Atom { attribute: 0, quota: 1 }], &[Node::Atom(0)]).unwrap_err(),
+            Rule::new(
+                2,
+                &w[..],
+                &[Atom {
+                    attribute: 0,
+                    quota: 1
+                }],
+                &[Node::Atom(0)]
+            )
+            .unwrap_err(),
             Error::WeightTableShape { len: 3, members: 2 }
         );
-        let atom = [Atom { attribute: 0, quota: 2 }];
-        assert_eq!(Rule::new(3, &w[..], &atom, &[Node::Atom(1)]).unwrap_err(), Error::UnknownAtom { node: 0, atom: 1 });
+        let atom = [Atom {
+            attribute: 0,
+            quota: 2,
+        }];
+        assert_eq!(
+            Rule::new(3, &w[..], &atom, &[Node::Atom(1)]).unwrap_err(),
+            Error::UnknownAtom { node: 0, atom: 1 }
+        );
         assert_eq!(
             Rule::new(3, &w[..], &atom, &[Node::Atom(0), Node::Atom(0)]).unwrap_err(),
             Error::MalformedFormula { node: 2 }
         );
-        assert_eq!(Rule::new(3, &w[..], &atom, &[Node::All(1)]).unwrap_err(), Error::MalformedFormula { node: 0 });
-        assert_eq!(Rule::new(3, &w[..], &atom, &[Node::Atom(0), Node::Any(0)]).unwrap_err(), Error::EmptyOperator { node: 1 });
-        let bad_attr = [Atom { attribute: 1, quota: 2 }];
+        assert_eq!(
+            Rule::new(3, &w[..], &atom, &[Node::All(1)]).unwrap_err(),
+            Error::MalformedFormula { node: 0 }
+        );
+        assert_eq!(
+            Rule::new(3, &w[..], &atom, &[Node::Atom(0), Node::Any(0)]).unwrap_err(),
+            Error::EmptyOperator { node: 1 }
+        );
+        let bad_attr = [Atom {
+            attribute: 1,
+            quota: 2,
+        }];
         assert_eq!(
             Rule::new(3, &w[..], &bad_attr, &[Node::Atom(0)]).unwrap_err(),
-            Error::UnknownAttribute { atom: 0, attribute: 1 }
+            Error::UnknownAttribute {
+                atom: 0,
+                attribute: 1
+            }
         );
         let huge = [u64::MAX, 1];
-        assert_eq!(Rule::weighted(1, &huge[..]).unwrap_err(), Error::WeightSumOverflow { attribute: 0 });
+        assert_eq!(
+            Rule::weighted(1, &huge[..]).unwrap_err(),
+            Error::WeightSumOverflow { attribute: 0 }
+        );
     }
 
     #[test]
     fn depth_limit() {
         let w = [1u64];
-        let atom = [Atom { attribute: 0, quota: 1 }];
+        let atom = [Atom {
+            attribute: 0,
+            quota: 1,
+        }];
         let mut f = [Node::All(1); MAX_DEPTH + 2];
         f[0] = Node::Atom(0);
         assert_eq!(
             Rule::new(1, &w[..], &atom, &f).unwrap_err(),
-            Error::TooDeep { depth: MAX_DEPTH + 1, limit: MAX_DEPTH }
+            Error::TooDeep {
+                depth: MAX_DEPTH + 1,
+                limit: MAX_DEPTH
+            }
         );
         assert!(Rule::new(1, &w[..], &atom, &f[..MAX_DEPTH + 1]).is_ok());
     }
@@ -321,11 +397,26 @@ mod tests {
         // seats: 3,2,1 ; heads: 1,1,1. (seats >= 4 and heads >= 2) or seats >= 6
         let w = [3u64, 2, 1, 1, 1, 1];
         let atoms = [
-            Atom { attribute: 0, quota: 4 },
-            Atom { attribute: 1, quota: 2 },
-            Atom { attribute: 0, quota: 6 },
+            Atom {
+                attribute: 0,
+                quota: 4,
+            },
+            Atom {
+                attribute: 1,
+                quota: 2,
+            },
+            Atom {
+                attribute: 0,
+                quota: 6,
+            },
         ];
-        let f = [Node::Atom(0), Node::Atom(1), Node::All(2), Node::Atom(2), Node::Any(2)];
+        let f = [
+            Node::Atom(0),
+            Node::Atom(1),
+            Node::All(2),
+            Node::Atom(2),
+            Node::Any(2),
+        ];
         let r = Rule::new(3, &w[..], &atoms, &f).unwrap();
         let p = |m: &[usize]| r.passes(&Coalition::<1>::from_members(m).unwrap()).unwrap();
         assert!(p(&[0, 1]));

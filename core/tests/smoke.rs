@@ -12,7 +12,18 @@ fn eec_1958() {
         let a = all(&r, e);
         let t = a.table();
         let s: Vec<String> = a.members.iter().map(|m| m.swings.to_string()).collect();
-        println!("{e:?} {s:?} {:?}", (0..6).map(|i| (t.banzhaf(i), t.shapley_shubik(i), t.johnston(i), t.deegan_packel(i), t.public_good(i))).collect::<Vec<_>>());
+        println!(
+            "{e:?} {s:?} {:?}",
+            (0..6)
+                .map(|i| (
+                    t.banzhaf(i),
+                    t.shapley_shubik(i),
+                    t.johnston(i),
+                    t.deegan_packel(i),
+                    t.public_good(i)
+                ))
+                .collect::<Vec<_>>()
+        );
         println!("{:?}", a.rule);
     }
 }

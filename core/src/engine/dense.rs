@@ -48,7 +48,9 @@ fn space<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Space, Error> {
         strides: [0; MAX_ATTRIBUTES],
         per_row: 1,
     };
-    let unsuitable = Error::EngineUnsuitable { engine: Engine::Dense };
+    let unsuitable = Error::EngineUnsuitable {
+        engine: Engine::Dense,
+    };
     let mut per_row: u128 = 1;
     for a in (0..rule.attributes()).filter(|a| mask & (1 << a) != 0) {
         let total = rule.total(a);
@@ -93,7 +95,9 @@ impl Space {
             let radix = self.caps[d] as usize + 1;
             let s = (rest % radix) as u64;
             rest /= radix;
-            let moved = s.saturating_add(rule.weight(self.attrs[d], member)).min(self.caps[d]);
+            let moved = s
+                .saturating_add(rule.weight(self.attrs[d], member))
+                .min(self.caps[d]);
             out += moved as usize * self.strides[d];
         }
         out
@@ -103,8 +107,15 @@ impl Space {
 pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
     let sp = space(rule)?;
     let n = rule.members();
-    let division_rows = if sp.dims == 1 { 2 * (sp.caps[0] as usize + 1) } else { 0 };
-    Ok(Need { counts: (n + 1) * sp.per_row + division_rows + n, indices: 2 * n + 1 })
+    let division_rows = if sp.dims == 1 {
+        2 * (sp.caps[0] as usize + 1)
+    } else {
+        0
+    };
+    Ok(Need {
+        counts: (n + 1) * sp.per_row + division_rows + n,
+        indices: 2 * n + 1,
+    })
 }
 
 pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
@@ -143,7 +154,12 @@ fn multiply<W: AsRef<[u64]>, C: Counter>(
 }
 
 /// Builds the distribution of all members except `skip` into `table`.
-fn build<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, sp: &Space, table: &mut [C], skip: Option<usize>) -> Result<(), Error> {
+fn build<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    sp: &Space,
+    table: &mut [C],
+    skip: Option<usize>,
+) -> Result<(), Error> {
     for c in table.iter_mut() {
         *c = C::ZERO;
     }
@@ -168,7 +184,11 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     let (order, starts) = work.indices.split_at_mut(n);
     let types = group_types(rule, rule.used_attributes(), order, starts);
     let (table, rest) = work.counts.split_at_mut((n + 1) * p);
-    let (rows, pivots) = rest.split_at_mut(if sp.dims == 1 { 2 * (sp.caps[0] as usize + 1) } else { 0 });
+    let (rows, pivots) = rest.split_at_mut(if sp.dims == 1 {
+        2 * (sp.caps[0] as usize + 1)
+    } else {
+        0
+    });
     let pivots = &mut pivots[..n];
     let mut totals = [0u64; MAX_ATTRIBUTES];
     for (a, t) in totals.iter_mut().enumerate().take(attributes) {

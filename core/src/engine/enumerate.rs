@@ -17,14 +17,19 @@ pub const MAX_MEMBERS: usize = 30;
 fn check<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<usize, Error> {
     let n = rule.members();
     if n > MAX_MEMBERS {
-        return Err(Error::EngineUnsuitable { engine: Engine::Enumerate });
+        return Err(Error::EngineUnsuitable {
+            engine: Engine::Enumerate,
+        });
     }
     Ok(n)
 }
 
 pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
     let n = check(rule)?;
-    Ok(Need { counts: 3 * n * n, indices: 0 })
+    Ok(Need {
+        counts: 3 * n * n,
+        indices: 0,
+    })
 }
 
 pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
@@ -50,7 +55,11 @@ impl<W: AsRef<[u64]>> Sums<'_, W> {
                 let attr = usize::from(atom.attribute);
                 let s = self.sums[attr];
                 let w = rule.weight(attr, i);
-                let s = if add { s.saturating_add(w) } else { s.saturating_sub(w) };
+                let s = if add {
+                    s.saturating_add(w)
+                } else {
+                    s.saturating_sub(w)
+                };
                 s >= atom.quota
             })
         })
@@ -73,14 +82,21 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     let (pivots, rest) = work.counts.split_at_mut(n * n);
     let (by_kappa, rest) = rest.split_at_mut(n * n);
     let minimal_by_size = &mut rest[..n * n];
-    for c in pivots.iter_mut().chain(by_kappa.iter_mut()).chain(minimal_by_size.iter_mut()) {
+    for c in pivots
+        .iter_mut()
+        .chain(by_kappa.iter_mut())
+        .chain(minimal_by_size.iter_mut())
+    {
         *c = C::ZERO;
     }
     let mut totals = [0u64; MAX_ATTRIBUTES];
     for (a, t) in totals.iter_mut().enumerate().take(rule.attributes()) {
         *t = rule.total(a);
     }
-    let mut state = Sums { rule, sums: [0; MAX_ATTRIBUTES] };
+    let mut state = Sums {
+        rule,
+        sums: [0; MAX_ATTRIBUTES],
+    };
     let mut out = RuleCounts {
         members: n,
         winning: C::ZERO,
@@ -136,7 +152,9 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
             if !state.wins_complement(&totals) {
                 out.strong = false;
             }
-            let maximal = (0..n).filter(|i| mask & (1 << i) == 0).all(|i| state.wins_changed(i, true));
+            let maximal = (0..n)
+                .filter(|i| mask & (1 << i) == 0)
+                .all(|i| state.wins_changed(i, true));
             if maximal {
                 out.minimal_blocking = Some(out.minimal_blocking.unwrap_or(C::ZERO).add(C::ONE)?);
             }
@@ -155,7 +173,10 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
 }
 
 fn bump<C: Counter>(counts: &mut [C], at: usize) -> Result<(), Error> {
-    let slot = counts.get_mut(at).ok_or(Error::ScratchTooSmall { needed: at + 1, given: 0 })?;
+    let slot = counts.get_mut(at).ok_or(Error::ScratchTooSmall {
+        needed: at + 1,
+        given: 0,
+    })?;
     *slot = slot.add(C::ONE)?;
     Ok(())
 }

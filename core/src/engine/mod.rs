@@ -98,14 +98,23 @@ pub fn try_count<W: AsRef<[u64]>, C: Counter>(
 ) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     if members.len() < n {
-        return Err(Error::ScratchTooSmall { needed: n, given: members.len() });
+        return Err(Error::ScratchTooSmall {
+            needed: n,
+            given: members.len(),
+        });
     }
     let needed = need(rule, engine)?;
     if work.counts.len() < needed.counts {
-        return Err(Error::ScratchTooSmall { needed: needed.counts, given: work.counts.len() });
+        return Err(Error::ScratchTooSmall {
+            needed: needed.counts,
+            given: work.counts.len(),
+        });
     }
     if work.indices.len() < needed.indices {
-        return Err(Error::ScratchTooSmall { needed: needed.indices, given: work.indices.len() });
+        return Err(Error::ScratchTooSmall {
+            needed: needed.indices,
+            given: work.indices.len(),
+        });
     }
     let members = &mut members[..n];
     for m in members.iter_mut() {

@@ -19,7 +19,12 @@ use crate::{Engine, Error, Rule};
 
 /// Sorts member indices so that members of one type are adjacent, and
 /// writes type boundaries into `starts` (T + 1 entries). Returns T.
-pub(crate) fn group_types<W: AsRef<[u64]>>(rule: &Rule<W>, mask: u64, order: &mut [u32], starts: &mut [u32]) -> usize {
+pub(crate) fn group_types<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    mask: u64,
+    order: &mut [u32],
+    starts: &mut [u32],
+) -> usize {
     let n = rule.members();
     for (i, o) in order.iter_mut().enumerate().take(n) {
         *o = i as u32;
@@ -56,7 +61,9 @@ fn shape<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<(usize, u128)> {
     let n = rule.members();
     let mask = rule.used_attributes();
     let same = |x: usize, y: usize| {
-        (0..rule.attributes()).filter(|a| mask & (1 << a) != 0).all(|a| rule.weight(a, x) == rule.weight(a, y))
+        (0..rule.attributes())
+            .filter(|a| mask & (1 << a) != 0)
+            .all(|a| rule.weight(a, x) == rule.weight(a, y))
     };
     let mut types = 0usize;
     let mut product: u128 = 1;
@@ -77,13 +84,20 @@ fn shape<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<(usize, u128)> {
 
 pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
     let n = rule.members();
-    let (types, _) = shape(rule).ok_or(Error::EngineUnsuitable { engine: Engine::Profile })?;
+    let (types, _) = shape(rule).ok_or(Error::EngineUnsuitable {
+        engine: Engine::Profile,
+    })?;
     // binomials Σ(c_t + 1) = n + T, products T + 1, per-type tables 3 T n.
-    Ok(Need { counts: n + 2 * types + 1 + 3 * types * n, indices: 3 * n + 1 })
+    Ok(Need {
+        counts: n + 2 * types + 1 + 3 * types * n,
+        indices: 3 * n + 1,
+    })
 }
 
 pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
-    let (types, profiles) = shape(rule).ok_or(Error::EngineUnsuitable { engine: Engine::Profile })?;
+    let (types, profiles) = shape(rule).ok_or(Error::EngineUnsuitable {
+        engine: Engine::Profile,
+    })?;
     let per = (2 * types as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
     Ok(profiles.saturating_mul(per))
 }
@@ -115,7 +129,11 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     let (order, rest) = work.indices.split_at_mut(n);
     let (starts, digits) = rest.split_at_mut(n + 1);
     let t_count = group_types(rule, mask, order, starts);
-    let types = Types { count: t_count, order, starts };
+    let types = Types {
+        count: t_count,
+        order,
+        starts,
+    };
     let digits = &mut digits[..t_count];
 
     // Scratch layout: binomials (offset per type), running products, tables.
@@ -124,7 +142,11 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     let (pivots, rest) = rest.split_at_mut(t_count * n);
     let (by_kappa, rest) = rest.split_at_mut(t_count * n);
     let minimal_by_size = &mut rest[..t_count * n];
-    for c in pivots.iter_mut().chain(by_kappa.iter_mut()).chain(minimal_by_size.iter_mut()) {
+    for c in pivots
+        .iter_mut()
+        .chain(by_kappa.iter_mut())
+        .chain(minimal_by_size.iter_mut())
+    {
         *c = C::ZERO;
     }
     // binomial table of type t starts at starts[t] + t and has c_t + 1 entries.
@@ -169,7 +191,11 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         let mut s = *sums;
         for (a, slot) in s.iter_mut().enumerate().take(attributes) {
             let w = weight(t, a);
-            *slot = if add { slot.saturating_add(w) } else { slot.saturating_sub(w) };
+            *slot = if add {
+                slot.saturating_add(w)
+            } else {
+                slot.saturating_sub(w)
+            };
         }
         s
     };
