@@ -290,16 +290,46 @@ impl<const L: usize> fmt::Display for Wide<L> {
         // number of 19-digit chunks (at most 20 * L / 19 + 1), each frame one
         // `Wide`, so no buffer sized for the worst case is needed.
         const CHUNK: u64 = 10_000_000_000_000_000_000;
-        fn write_chunks<const L: usize>(v: Wide<L>, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        fn write_chunks<const L: usize>(v: Wide<L>, out: &mut dyn fmt::Write) -> fmt::Result {
             let (q, r) = v.div_rem_u64(CHUNK);
             if q.used() == 0 {
-                write!(f, "{r}")
+                write!(out, "{r}")
             } else {
-                write_chunks(q, f)?;
-                write!(f, "{r:019}")
+                write_chunks(q, out)?;
+                write!(out, "{r:019}")
             }
         }
-        write_chunks(*self, f)
+        if f.width().is_none() {
+            return write_chunks(*self, f);
+        }
+        // Padding needs the whole text first; 1024-bit counts have at most
+        // 309 digits. Longer numbers are written unpadded.
+        let mut buf = DigitBuf { bytes: [0; 512], len: 0 };
+        match write_chunks(*self, &mut buf) {
+            Ok(()) => f.pad_integral(true, "", buf.as_str()),
+            Err(_) => write_chunks(*self, f),
+        }
+    }
+}
+
+struct DigitBuf {
+    bytes: [u8; 512],
+    len: usize,
+}
+
+impl DigitBuf {
+    fn as_str(&self) -> &str {
+        core::str::from_utf8(&self.bytes[..self.len]).unwrap_or("")
+    }
+}
+
+impl fmt::Write for DigitBuf {
+    fn write_str(&mut self, s: &str) -> fmt::Result {
+        let end = self.len + s.len();
+        let dest = self.bytes.get_mut(self.len..end).ok_or(fmt::Error)?;
+        dest.copy_from_slice(s.as_bytes());
+        self.len = end;
+        Ok(())
     }
 }
 
@@ -332,6 +362,7 @@ pub fn binomial<C: Counter>(n: u64, k: u64) -> Result<C, Error> {
 mod tests {
     use super::*;
     extern crate std;
+    use std::format;
     use std::string::ToString;
 
     type W2 = Wide<2>;
