@@ -6,9 +6,21 @@ use clout::{analyze, Count1024, Rule};
 
 fn main() {
     let names = [
-        "north ward", "east ward", "south ward", "west ward", "old town",
-        "quay 1", "quay 2", "quay 3", "quay 4", "quay 5",
-        "hill 1", "hill 2", "hill 3", "hill 4", "hill 5",
+        "north ward",
+        "east ward",
+        "south ward",
+        "west ward",
+        "old town",
+        "quay 1",
+        "quay 2",
+        "quay 3",
+        "quay 4",
+        "quay 5",
+        "hill 1",
+        "hill 2",
+        "hill 3",
+        "hill 4",
+        "hill 5",
     ];
     let mut seats = vec![7u64; 5];
     seats.extend([1u64; 10]);
@@ -28,7 +40,11 @@ fn main() {
     };
     let t = power.table();
     println!("Harbour Council of Port Wend (fictional): [39; 7 x5, 1 x10]");
-    println!("engine: {} (estimated {} steps)\n", power.plan.engine.name(), power.plan.cost);
+    println!(
+        "engine: {} (estimated {} steps)\n",
+        power.plan.engine.name(),
+        power.plan.cost
+    );
     println!(
         "{:<12} {:>5} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8}  flags",
         "member", "seats", "swings", "banzhaf", "penrose", "shapley", "johnst", "deegan", "holler"
@@ -71,7 +87,12 @@ fn main() {
     if let Some(s) = r.smallest_winning {
         println!("smallest winning size   {s}");
     }
-    println!("proper {} / strong {} / decisive {}", r.proper, r.strong, r.decisive());
+    println!(
+        "proper {} / strong {} / decisive {}",
+        r.proper,
+        r.strong,
+        r.decisive()
+    );
     println!();
     println!("Model: every member votes yes or no independently with equal chance; indices measure");
     println!("a priori power, not predicted behaviour. The legal outcome of a vote follows the governing");

@@ -304,7 +304,10 @@ impl<const L: usize> fmt::Display for Wide<L> {
         }
         // Padding needs the whole text first; 1024-bit counts have at most
         // 309 digits. Longer numbers are written unpadded.
-        let mut buf = DigitBuf { bytes: [0; 512], len: 0 };
+        let mut buf = DigitBuf {
+            bytes: [0; 512],
+            len: 0,
+        };
         match write_chunks(*self, &mut buf) {
             Ok(()) => f.pad_integral(true, "", buf.as_str()),
             Err(_) => write_chunks(*self, f),
@@ -362,7 +365,6 @@ pub fn binomial<C: Counter>(n: u64, k: u64) -> Result<C, Error> {
 mod tests {
     use super::*;
     extern crate std;
-    use std::format;
     use std::string::ToString;
 
     type W2 = Wide<2>;

@@ -182,8 +182,8 @@ impl<W: AsRef<[u64]>> Rule<W> {
     }
 
     /// Evaluates the formula given each atom's truth. O(nodes), no heap.
-    pub fn eval(&self, mut atom_met: impl FnMut(usize) -> bool) -> bool {
-        eval_postfix(&self.formula, |i| atom_met(i))
+    pub fn eval(&self, atom_met: impl FnMut(usize) -> bool) -> bool {
+        eval_postfix(&self.formula, atom_met)
     }
 
     /// Evaluates the formula given the yes-sum of each attribute.

@@ -164,10 +164,8 @@ fn build<W: AsRef<[u64]>, C: Counter>(
         *c = C::ZERO;
     }
     table[0] = C::ONE;
-    let mut filled = 0;
-    for i in (0..rule.members()).filter(|&i| Some(i) != skip) {
+    for (filled, i) in (0..rule.members()).filter(|&i| Some(i) != skip).enumerate() {
         multiply(rule, sp, table, filled, i)?;
-        filled += 1;
     }
     Ok(())
 }
@@ -306,8 +304,7 @@ fn divide_out<W: AsRef<[u64]>, C: Counter>(
             let below = if k > 0 && s >= w { prev[s - w] } else { C::ZERO };
             cur[s] = table[k * p + s].sub(below)?;
         }
-        for s in 0..p {
-            let c = cur[s];
+        for (s, &c) in cur.iter().enumerate() {
             if !c.is_zero() && wins_at((s + w).min(cap)) {
                 pivots[k] = pivots[k].add(c)?;
             }

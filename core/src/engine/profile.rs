@@ -213,19 +213,18 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
             // kappa: number of individual swings in each coalition of this profile.
             let mut kappa = 0usize;
             let mut all_swing = true;
-            for t in 0..t_count {
-                let p = digits[t] as usize;
+            for (t, &p) in digits.iter().enumerate() {
                 if p == 0 {
                     continue;
                 }
                 if passes(&shifted(&sums, t, false)) {
                     all_swing = false;
                 } else {
-                    kappa += p;
+                    kappa += p as usize;
                 }
             }
-            for t in 0..t_count {
-                let p = digits[t] as usize;
+            for (t, &p) in digits.iter().enumerate() {
+                let p = p as usize;
                 if p == 0 {
                     continue;
                 }

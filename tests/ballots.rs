@@ -1,0 +1,196 @@
+//! Deciding actual votes, critical members, caller scratch and overflow.
+
+use clout::engine::{self, Workspace};
+use clout::{critical, decide, Atom, Coalition, Count1024, Engine, Error, MemberCounts, Node, Rule};
+use proptest::prelude::*;
+
+/// A fictional board: seats 5,4,3,2,1 and head count; passes with
+/// (seats >= 9 and count >= 3) or seats >= 12.
+fn board() -> Rule<Vec<u64>> {
+    let mut w = vec![5, 4, 3, 2, 1];
+    w.extend([1u64; 5]);
+    let atoms = [
+        Atom {
+            attribute: 0,
+            quota: 9,
+        },
+        Atom {
+            attribute: 1,
+            quota: 3,
+        },
+        Atom {
+            attribute: 0,
+            quota: 12,
+        },
+    ];
+    let f = [
+        Node::Atom(0),
+        Node::Atom(1),
+        Node::All(2),
+        Node::Atom(2),
+        Node::Any(2),
+    ];
+    Rule::new(5, w, &atoms, &f).unwrap()
+}
+
+fn ballot(m: &[usize]) -> Coalition<1> {
+    Coalition::from_members(m).unwrap()
+}
+
+#[test]
+fn hand_checked_ballots() {
+    let r = board();
+    // {5,4}: seats 9 >= 9 but count 2 < 3, seats 9 < 12: fails.
+    let d = decide(&r, &ballot(&[0, 1])).unwrap();
+    assert!(!d.passed);
+    assert_eq!(
+        (d.tallies[0].sum, d.tallies[0].quota, d.tallies[0].met),
+        (9, 9, true)
+    );
+    assert_eq!((d.tallies[1].sum, d.tallies[1].met), (2, false));
+    // {5,3,1}: seats 9, count 3: passes through the first branch.
+    assert!(decide(&r, &ballot(&[0, 2, 4])).unwrap().passed);
+    // {5,4,3}: seats 12: passes both ways.
+    let d = decide(&r, &ballot(&[0, 1, 2])).unwrap();
+    assert!(d.passed && d.tallies.iter().all(|t| t.met));
+    // Critical in {5,4,3}: removing 5 leaves 7 seats (fail), 4 leaves 8
+    // (fail), 3 leaves 9 seats with 2 heads (fail): all three critical.
+    let c = critical(&r, &ballot(&[0, 1, 2])).unwrap();
+    assert_eq!(c.iter().collect::<Vec<_>>(), [0, 1, 2]);
+    // Critical in the failing {5,4}: adding 3 (12 seats), 2 (11 seats, 3
+    // heads) or 1 (10 seats, 3 heads) passes it.
+    let c = critical(&r, &ballot(&[0, 1])).unwrap();
+    assert_eq!(c.iter().collect::<Vec<_>>(), [2, 3, 4]);
+    // A ballot naming a member the rule does not have is an error.
+    assert!(matches!(
+        decide(&r, &ballot(&[7])),
+        Err(Error::BallotMismatch { .. })
+    ));
+}
+
+proptest! {
+    #[test]
+    fn critical_matches_definition(mask in 0u64..32) {
+        let r = board();
+        let mut b = Coalition::<1>::new();
+        for i in 0..5 {
+            if mask >> i & 1 == 1 { b.insert(i).unwrap(); }
+        }
+        let passed = r.passes(&b).unwrap();
+        let c = critical(&r, &b).unwrap();
+        for i in 0..5 {
+            let mut flipped = b;
+            flipped.toggle(i);
+            prop_assert_eq!(c.contains(i), r.passes(&flipped).unwrap() != passed);
+        }
+    }
+}
+
+#[test]
+fn caller_scratch_without_allocation_semantics() {
+    let w = [4u64, 4, 4, 2, 2, 1];
+    let r = Rule::weighted(12, &w[..]).unwrap();
+    for e in [Engine::Enumerate, Engine::Profile, Engine::Dense] {
+        let need = engine::need(&r, e).unwrap();
+        let mut members = [MemberCounts::<u64>::EMPTY; 6];
+        let mut counts = vec![0u64; need.counts];
+        let mut indices = vec![0u32; need.indices];
+        if need.counts > 0 {
+            let short = &mut counts[..need.counts - 1];
+            let got = engine::try_count(
+                &r,
+                e,
+                &mut members,
+                Workspace {
+                    counts: short,
+                    indices: &mut indices,
+                },
+            );
+            assert_eq!(
+                got.unwrap_err(),
+                Error::ScratchTooSmall {
+                    needed: need.counts,
+                    given: need.counts - 1
+                }
+            );
+        }
+        if need.indices > 0 {
+            let short = &mut indices[..need.indices - 1];
+            let got = engine::try_count(
+                &r,
+                e,
+                &mut members,
+                Workspace {
+                    counts: &mut counts,
+                    indices: short,
+                },
+            );
+            assert!(matches!(got, Err(Error::ScratchTooSmall { .. })));
+        }
+        let mut few = [MemberCounts::<u64>::EMPTY; 5];
+        let got = engine::try_count(
+            &r,
+            e,
+            &mut few,
+            Workspace {
+                counts: &mut counts,
+                indices: &mut indices,
+            },
+        );
+        assert!(matches!(got, Err(Error::ScratchTooSmall { needed: 6, given: 5 })));
+        let rc = engine::try_count(
+            &r,
+            e,
+            &mut members,
+            Workspace {
+                counts: &mut counts,
+                indices: &mut indices,
+            },
+        )
+        .unwrap();
+        assert_eq!(rc.winning, 14);
+        assert_eq!(members.map(|m| m.swings), [10, 10, 10, 6, 6, 0]);
+    }
+}
+
+#[test]
+fn count_overflow_is_an_error() {
+    // 100 equal members: 2^100 coalitions do not fit in u64.
+    let r = Rule::weighted(51, vec![1u64; 100]).unwrap();
+    let need = engine::need(&r, Engine::Profile).unwrap();
+    let mut members = vec![MemberCounts::<u64>::EMPTY; 100];
+    let mut counts = vec![0u64; need.counts];
+    let mut indices = vec![0u32; need.indices];
+    let got = engine::try_count(
+        &r,
+        Engine::Profile,
+        &mut members,
+        Workspace {
+            counts: &mut counts,
+            indices: &mut indices,
+        },
+    );
+    assert_eq!(got.unwrap_err(), Error::CountOverflow);
+    // ... but fit in u128 and in 1024 bits.
+    assert!(clout::analyze::<_, u128>(&r).is_ok());
+    assert!(clout::analyze::<_, Count1024>(&r).is_ok());
+}
+
+#[test]
+fn engines_refuse_what_they_cannot_do() {
+    let r = Rule::weighted(16, vec![1u64; 31]).unwrap();
+    assert_eq!(
+        engine::need(&r, Engine::Enumerate).unwrap_err(),
+        Error::EngineUnsuitable {
+            engine: Engine::Enumerate
+        }
+    );
+    // 40 members with distinct huge weights: no exact engine within budget.
+    let w: Vec<u64> = (0..40).map(|i| 1_000_000_007u64 * (i + 1)).collect();
+    let total: u64 = w.iter().sum();
+    let r = Rule::weighted(total / 2 + 1, w).unwrap();
+    assert!(matches!(
+        clout::planner::plan(&r, 1 << 36),
+        Err(Error::TooCostly { .. })
+    ));
+}
