@@ -5,3 +5,5 @@
 
 pub use clout_core as core;
 pub use clout_core::*;
+
+pub mod scenarios;

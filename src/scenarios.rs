@@ -1,0 +1,136 @@
+//! Deterministic fictional scenarios shared by benchmarks, tests and demos.
+//!
+//! Every name and number here is invented; the shapes follow the benchmark
+//! scenarios of the design notes.
+
+use crate::{Atom, Node, Rule};
+
+/// A 64-bit linear congruential generator (Knuth's MMIX constants), so the
+/// data are the same on every machine without a dependency.
+pub struct Lcg(pub u64);
+
+impl Lcg {
+    /// Next pseudo-random value.
+    pub fn next_u64(&mut self) -> u64 {
+        self.0 = self
+            .0
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        self.0 >> 11
+    }
+}
+
+/// committee-15: five members with 7 votes and a veto, ten with 1;
+/// passage needs 39 of 45 (`[39; 7 x5, 1 x10]`).
+pub fn committee_15() -> Rule<Vec<u64>> {
+    let mut w = vec![7u64; 5];
+    w.extend([1u64; 10]);
+    Rule::weighted(39, w).expect("valid scenario")
+}
+
+/// federal-536: a lower chamber of 435 and an upper chamber of 100 equal
+/// members and an executive; passage by (more than half of both chambers
+/// and the executive) or (at least two thirds of both chambers).
+pub fn federal_536() -> Rule<Vec<u64>> {
+    let n = 536;
+    let mut w = vec![0u64; 3 * n];
+    w[..435].fill(1);
+    w[n + 435..n + 535].fill(1);
+    w[2 * n + 535] = 1;
+    let atoms = [
+        Atom {
+            attribute: 0,
+            quota: 218,
+        },
+        Atom {
+            attribute: 1,
+            quota: 51,
+        },
+        Atom {
+            attribute: 2,
+            quota: 1,
+        },
+        Atom {
+            attribute: 0,
+            quota: 290,
+        },
+        Atom {
+            attribute: 1,
+            quota: 67,
+        },
+    ];
+    let f = [
+        Node::Atom(0),
+        Node::Atom(1),
+        Node::Atom(2),
+        Node::All(3),
+        Node::Atom(3),
+        Node::Atom(4),
+        Node::All(2),
+        Node::Any(2),
+    ];
+    Rule::new(n, w, &atoms, &f).expect("valid scenario")
+}
+
+/// Fictional exact populations of 27 member states, heavy-tailed, summing
+/// to about 450 million.
+pub fn union_27_populations() -> Vec<u64> {
+    let mut rng = Lcg(27);
+    (0..27u64)
+        .map(|i| {
+            // Roughly 84 million / (i + 1)^0.9 plus up to 3% noise, at least 400,000.
+            let base = 84_000_000.0 / ((i + 1) as f64).powf(0.9);
+            let noise = (rng.next_u64() % 3_000) as f64 / 100_000.0;
+            ((base * (1.0 + noise)) as u64).max(400_000 + rng.next_u64() % 100_000)
+        })
+        .collect()
+}
+
+/// union-27: (at least 15 of 27 members and at least 65% of the population)
+/// or fewer than 4 members against.
+pub fn union_27() -> Rule<Vec<u64>> {
+    let pop = union_27_populations();
+    let total: u64 = pop.iter().sum();
+    let mut w = vec![1u64; 27];
+    w.extend(&pop);
+    let atoms = [
+        Atom {
+            attribute: 0,
+            quota: 15,
+        },
+        Atom {
+            attribute: 1,
+            quota: crate::quota::at_least_share(65, 100, total).expect("share"),
+        },
+        Atom {
+            attribute: 0,
+            quota: crate::quota::against(
+                crate::quota::Comparison::LessThan,
+                crate::quota::Bound::Amount(4),
+                27,
+            )
+            .expect("quota"),
+        },
+    ];
+    let f = [
+        Node::Atom(0),
+        Node::Atom(1),
+        Node::All(2),
+        Node::Atom(2),
+        Node::Any(2),
+    ];
+    Rule::new(27, w, &atoms, &f).expect("valid scenario")
+}
+
+/// `count` pseudo-random ballots over `n` members, each member voting yes
+/// with probability 1/2.
+pub fn ballots(n: usize, count: usize, seed: u64) -> Vec<crate::Coalition<1>> {
+    let mut rng = Lcg(seed);
+    (0..count)
+        .map(|_| {
+            let bits = rng.next_u64() ^ (rng.next_u64() << 32);
+            let mask = if n >= 64 { u64::MAX } else { (1u64 << n) - 1 };
+            crate::Coalition::from_words([bits & mask])
+        })
+        .collect()
+}
