@@ -74,6 +74,7 @@ pub mod count;
 mod decide;
 pub mod engine;
 mod error;
+pub mod image;
 pub mod limits;
 pub mod planner;
 mod power;
@@ -88,6 +89,7 @@ pub use count::{Count1024, Counter, Wide};
 pub use decide::{critical, decide, AtomTally, Decision};
 pub use engine::Engine;
 pub use error::Error;
+pub use image::{ImageError, ImageInfo};
 pub use power::{MemberCounts, PowerTable, RuleCounts};
 pub use rule::{Atom, Node, Rule};
 
