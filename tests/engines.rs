@@ -127,6 +127,8 @@ fn compare_all(s: &Spec) -> Result<(), TestCaseError> {
     let oracle = analyze_with::<_, C>(&rule, Engine::Enumerate).unwrap();
     let profile = analyze_with::<_, C>(&rule, Engine::Profile).unwrap();
     assert_same(&oracle, &profile, true)?;
+    let diagram = analyze_with::<_, C>(&rule, Engine::Diagram).unwrap();
+    assert_same(&oracle, &diagram, false)?;
     match analyze_with::<_, C>(&rule, Engine::Dense) {
         Ok(dense) => assert_same(&oracle, &dense, false)?,
         Err(clout::Error::EngineUnsuitable { .. }) => {}

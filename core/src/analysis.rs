@@ -42,11 +42,7 @@ pub fn analyze_with<W: AsRef<[u64]>, C: Counter>(
     let mut p = plan(rule, u128::MAX).unwrap_or(Plan {
         engine,
         cost: 0,
-        costs: [
-            (Engine::Profile, None),
-            (Engine::Dense, None),
-            (Engine::Enumerate, None),
-        ],
+        costs: Engine::ALL.map(|e| (e, None)),
     });
     p.engine = engine;
     p.cost = engine::cost(rule, engine)?;

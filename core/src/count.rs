@@ -31,6 +31,8 @@ pub trait Counter: Copy + Clone + Eq + Ord + fmt::Debug + fmt::Display {
     /// `(m, e)` with `self ≈ m * 2^e` and `m` in `[0.5, 1)` (or `(0.0, 0)` for 0).
     /// Keeps ratios of huge counts finite; relative error below 2^-52.
     fn to_f64_parts(self) -> (f64, i32);
+    /// The value `v`, or `None` if it does not fit.
+    fn from_u128(v: u128) -> Option<Self>;
     /// `(self / d, self % d)` for a non-zero small divisor.
     fn div_rem_u64(self, d: u64) -> (Self, u64);
     /// Whether the value is zero.
@@ -117,6 +119,9 @@ macro_rules! native_counter {
             }
             fn to_f64_parts(self) -> (f64, i32) {
                 parts_u128(self as u128)
+            }
+            fn from_u128(v: u128) -> Option<Self> {
+                <$t>::try_from(v).ok()
             }
             fn div_rem_u64(self, d: u64) -> (Self, u64) {
                 let d = d as $t;
@@ -262,6 +267,21 @@ impl<const L: usize> Counter for Wide<L> {
             }
         }
         Some(Wide { limbs: out })
+    }
+
+    fn from_u128(v: u128) -> Option<Self> {
+        let mut limbs = [0u64; L];
+        match L {
+            0 => return (v == 0).then_some(Wide { limbs }),
+            1 => {
+                limbs[0] = u64::try_from(v).ok()?;
+            }
+            _ => {
+                limbs[0] = v as u64;
+                limbs[1] = (v >> 64) as u64;
+            }
+        }
+        Some(Wide { limbs })
     }
 
     fn div_rem_u64(self, d: u64) -> (Self, u64) {

@@ -53,6 +53,8 @@ pub enum Error {
     EngineUnsuitable { engine: crate::Engine },
     /// The exact computation would take more work than the caller allows.
     TooCostly { estimate: u128, budget: u128 },
+    /// The computation would need more memory than the caller allows.
+    MemoryLimit { needed: u64, limit: u64 },
 }
 
 impl fmt::Display for Error {
@@ -102,6 +104,10 @@ impl fmt::Display for Error {
                 write!(f, "scratch of {given} elements is too small, {needed} needed")
             }
             EngineUnsuitable { engine } => write!(f, "the {} engine cannot handle this rule", engine.name()),
+            MemoryLimit { needed, limit } => write!(
+                f,
+                "the computation needs at least {needed} bytes, over the memory limit of {limit}"
+            ),
             TooCostly { estimate, budget } => write!(
                 f,
                 "the exact computation needs about {estimate} steps, over the budget of {budget}"

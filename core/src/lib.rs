@@ -65,6 +65,8 @@
 #![cfg_attr(not(any(test, feature = "std")), no_std)]
 #![deny(unsafe_code)]
 #![warn(missing_docs)]
+// Indexed loops read more clearly than zipped iterators in the DP tables.
+#![allow(clippy::needless_range_loop)]
 
 #[cfg(feature = "alloc")]
 extern crate alloc;

@@ -15,7 +15,7 @@ pub struct Plan {
     /// Its estimated cost in elementary steps.
     pub cost: u128,
     /// Estimated cost of every engine, `None` where it cannot handle the rule.
-    pub costs: [(Engine, Option<u128>); 3],
+    pub costs: [(Engine, Option<u128>); 4],
 }
 
 /// Picks the cheapest engine that can handle `rule`.
@@ -24,15 +24,12 @@ pub struct Plan {
 /// `budget` steps, and with [`Error::EngineUnsuitable`] when no engine
 /// applies.
 pub fn plan<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Error> {
-    let mut costs = [
-        (Engine::Profile, None),
-        (Engine::Dense, None),
-        (Engine::Enumerate, None),
-    ];
+    let mut costs = Engine::ALL.map(|e| (e, None));
     let mut best: Option<(Engine, u128)> = None;
-    for (slot, engine) in costs.iter_mut().zip(Engine::ALL) {
+    for slot in costs.iter_mut() {
+        let engine = slot.0;
         let c = cost(rule, engine).ok();
-        *slot = (engine, c);
+        slot.1 = c;
         if let Some(c) = c {
             if best.is_none_or(|(_, b)| c < b) {
                 best = Some((engine, c));

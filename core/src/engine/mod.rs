@@ -12,6 +12,8 @@
 //! against.
 
 pub(crate) mod dense;
+#[cfg(feature = "alloc")]
+pub mod diagram;
 pub(crate) mod enumerate;
 pub(crate) mod profile;
 
@@ -31,11 +33,14 @@ pub enum Engine {
     Profile,
     /// Generating functions over capped partial sums (dynamic programming).
     Dense,
+    /// Quasi-reduced ordered decision diagrams (feature `alloc`): exact for
+    /// huge weights.
+    Diagram,
 }
 
 impl Engine {
     /// All engines, in the planner's order of preference on equal cost.
-    pub const ALL: [Engine; 3] = [Engine::Profile, Engine::Dense, Engine::Enumerate];
+    pub const ALL: [Engine; 4] = [Engine::Profile, Engine::Dense, Engine::Diagram, Engine::Enumerate];
 
     /// Short lowercase name.
     pub fn name(self) -> &'static str {
@@ -43,13 +48,24 @@ impl Engine {
             Engine::Enumerate => "enumerate",
             Engine::Profile => "profile",
             Engine::Dense => "dense",
+            Engine::Diagram => "diagram",
         }
     }
 
     /// Whether this engine computes the minimal-coalition indices (Johnston,
     /// Deegan-Packel, Holler) and counts.
     pub fn computes_minimal(self) -> bool {
-        !matches!(self, Engine::Dense)
+        !matches!(self, Engine::Dense | Engine::Diagram)
+    }
+
+    /// What the engine does, in one line.
+    pub fn describe(self) -> &'static str {
+        match self {
+            Engine::Enumerate => "visits every coalition (2^n of them)",
+            Engine::Profile => "visits every profile of member types, weighted by binomial coefficients",
+            Engine::Dense => "dynamic programming over capped partial sums (generating functions)",
+            Engine::Diagram => "decision diagram over equivalence classes of residual quotas",
+        }
     }
 }
 
@@ -77,6 +93,8 @@ pub fn need<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<Need, Err
         Engine::Enumerate => enumerate::need(rule),
         Engine::Profile => profile::need(rule),
         Engine::Dense => dense::need(rule),
+        // The diagram engine allocates its own storage (feature `alloc`).
+        Engine::Diagram => diagram_need(),
     }
 }
 
@@ -86,7 +104,35 @@ pub fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<u128, Err
         Engine::Enumerate => enumerate::cost(rule),
         Engine::Profile => profile::cost(rule),
         Engine::Dense => dense::cost(rule),
+        Engine::Diagram => diagram_cost(rule),
     }
+}
+
+#[cfg(feature = "alloc")]
+fn diagram_need() -> Result<Need, Error> {
+    Ok(Need {
+        counts: 0,
+        indices: 0,
+    })
+}
+
+#[cfg(not(feature = "alloc"))]
+fn diagram_need() -> Result<Need, Error> {
+    Err(Error::EngineUnsuitable {
+        engine: Engine::Diagram,
+    })
+}
+
+#[cfg(feature = "alloc")]
+fn diagram_cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
+    Ok(diagram::estimate(rule))
+}
+
+#[cfg(not(feature = "alloc"))]
+fn diagram_cost<W: AsRef<[u64]>>(_: &Rule<W>) -> Result<u128, Error> {
+    Err(Error::EngineUnsuitable {
+        engine: Engine::Diagram,
+    })
 }
 
 /// Runs `engine` on `rule`, writing one entry per member into `members`.
@@ -124,10 +170,34 @@ pub fn try_count<W: AsRef<[u64]>, C: Counter>(
         Engine::Enumerate => enumerate::count(rule, members, work)?,
         Engine::Profile => profile::count(rule, members, work)?,
         Engine::Dense => dense::count(rule, members, work)?,
+        Engine::Diagram => diagram_count(rule, members)?,
     };
     mark_veto_and_dictators(rule, members);
     counts.factorial = factorial(n).ok();
     Ok(counts)
+}
+
+#[cfg(feature = "alloc")]
+fn diagram_count<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    members: &mut [MemberCounts<C>],
+) -> Result<RuleCounts<C>, Error> {
+    diagram::count(
+        rule,
+        members,
+        diagram::Order::LightFirst,
+        diagram::DEFAULT_MEMORY_LIMIT,
+    )
+}
+
+#[cfg(not(feature = "alloc"))]
+fn diagram_count<W: AsRef<[u64]>, C: Counter>(
+    _: &Rule<W>,
+    _: &mut [MemberCounts<C>],
+) -> Result<RuleCounts<C>, Error> {
+    Err(Error::EngineUnsuitable {
+        engine: Engine::Diagram,
+    })
 }
 
 /// Veto: the rule fails when everyone but the member votes yes.
