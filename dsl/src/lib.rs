@@ -1,1 +1,48 @@
-//! The clout rule language (text to the clout-core rule IR). Built in a later step.
+//! # clout-dsl
+//!
+//! The clout rule language: a rule file in text becomes the core's rule IR
+//! ([`clout_core::Rule`]), with every quota an exact integer and every error
+//! pointing at the line and column that caused it.
+//!
+//! ```
+//! let source = "
+//!     title \"Alder Creek Council (fictional)\"
+//!     member mayor seats=3
+//!     members ward x4 seats=1
+//!     rule motion = seats > 1/2 and mayor
+//! ";
+//! let file = clout_dsl::compile(source).unwrap();
+//! let motion = file.rule(None).unwrap();
+//! assert_eq!(motion.rule.members(), 5);
+//! // "more than half of 7 seats" is the exact quota 4.
+//! assert_eq!(motion.rule.atoms()[0].quota, 4);
+//! ```
+//!
+//! Pipeline, one module each: [`syntax`] (pest grammar, tree with spans) ->
+//! [`compile`] (names, exact quotas, lowering to the IR) -> [`lint`]
+//! (warnings that need the core's counts: dummies, improper rules). [`print`]
+//! writes a rule back as text that compiles to the same rule. Errors are
+//! [`Diagnostic`]s; pest's types never leave the crate.
+//!
+//! | step | time |
+//! | --- | --- |
+//! | parse + compile | O(source + members * attributes) |
+//! | lint | one exact analysis per rule, within a work budget |
+//! | print | O(members * attributes + nodes) |
+
+#![deny(unsafe_code)]
+#![warn(missing_docs)]
+
+pub mod compile;
+pub mod diagnostic;
+pub mod exact;
+pub mod lint;
+pub mod print;
+pub mod syntax;
+
+pub use compile::{
+    compile, Attribute, AttributeKind, Bloc, CompiledRule, Condition, Group, Member, RuleFile,
+};
+pub use diagnostic::{render_all, Diagnostic, Severity, Span};
+pub use lint::lint;
+pub use print::print_rule;

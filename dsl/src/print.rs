@@ -1,0 +1,124 @@
+//! A compiled rule back to text.
+//!
+//! [`print_rule`] writes any [`Rule`] as a rule file: attributes `a1..ak`,
+//! members `m1..` (runs of identical neighbours as one `members gK_ xN`
+//! line), and one `rule printed = ...` whose conditions are `aK >= quota`.
+//! Every operator is parenthesized inside another, so the tree shape is kept.
+//! When each atom is used once, in index order, conditions are written
+//! inline; otherwise each atom becomes `define cK = ...` and the rule refers
+//! to the definitions.
+//!
+//! Compiling the text gives back the same rule for every rule the compiler
+//! produces (atoms numbered in order of first use, operators with at least
+//! two operands, quotas between 1 and their attribute's total). O(members *
+//! attributes + nodes) time.
+
+use std::fmt::Write;
+
+use clout_core::{Node, Rule};
+
+enum Tree {
+    Atom(u16),
+    All(Vec<Tree>),
+    Any(Vec<Tree>),
+}
+
+/// The rule as a rule file.
+pub fn print_rule<W: AsRef<[u64]>>(rule: &Rule<W>) -> String {
+    let mut out = String::from("# printed by clout-dsl\n");
+    print_members(rule, &mut out);
+    let Some(tree) = tree(rule.formula()) else {
+        return out;
+    };
+    let mut order = Vec::new();
+    leaves(&tree, &mut order);
+    let inline =
+        order.len() == rule.atoms().len() && order.iter().enumerate().all(|(k, &a)| usize::from(a) == k);
+    let atom_text = |i: u16| {
+        let atom = rule.atoms()[usize::from(i)];
+        format!("a{} >= {}", atom.attribute + 1, atom.quota)
+    };
+    if !inline {
+        for i in 0..rule.atoms().len() {
+            let _ = writeln!(out, "define c{} = {}", i + 1, atom_text(i as u16));
+        }
+    }
+    let leaf = |i: u16| {
+        if inline {
+            atom_text(i)
+        } else {
+            format!("c{}", i + 1)
+        }
+    };
+    let _ = writeln!(out, "rule printed = {}", expression(&tree, &leaf, true));
+    out
+}
+
+fn print_members<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut String) {
+    let n = rule.members();
+    let k = rule.attributes();
+    let same = |i: usize, j: usize| (0..k).all(|a| rule.weight(a, i) == rule.weight(a, j));
+    let mut i = 0;
+    let mut groups = 0;
+    while i < n {
+        let mut run = 1;
+        while i + run < n && same(i, i + run) {
+            run += 1;
+        }
+        if run > 1 {
+            groups += 1;
+            let _ = write!(out, "members g{groups}_ x{run}");
+        } else {
+            let _ = write!(out, "member m{}", i + 1);
+        }
+        for a in 0..k {
+            let w = rule.weight(a, i);
+            // The first line names every attribute so that their order is kept.
+            if w != 0 || i == 0 {
+                let _ = write!(out, " a{}={w}", a + 1);
+            }
+        }
+        out.push('\n');
+        i += run;
+    }
+}
+
+fn tree(formula: &[Node]) -> Option<Tree> {
+    let mut stack: Vec<Tree> = Vec::new();
+    for node in formula {
+        match *node {
+            Node::Atom(i) => stack.push(Tree::Atom(i)),
+            Node::All(k) | Node::Any(k) => {
+                let at = stack.len().checked_sub(usize::from(k))?;
+                let operands = stack.split_off(at);
+                stack.push(match node {
+                    Node::All(_) => Tree::All(operands),
+                    _ => Tree::Any(operands),
+                });
+            }
+        }
+    }
+    stack.pop()
+}
+
+fn leaves(t: &Tree, out: &mut Vec<u16>) {
+    match t {
+        Tree::Atom(i) => out.push(*i),
+        Tree::All(v) | Tree::Any(v) => v.iter().for_each(|x| leaves(x, out)),
+    }
+}
+
+fn expression(t: &Tree, leaf: &impl Fn(u16) -> String, top: bool) -> String {
+    let (operands, word) = match t {
+        Tree::Atom(i) => return leaf(*i),
+        Tree::All(v) => (v, " and "),
+        Tree::Any(v) => (v, " or "),
+    };
+    let inner: Vec<String> = operands.iter().map(|x| expression(x, leaf, false)).collect();
+    let joined = inner.join(word);
+    if top {
+        joined
+    } else {
+        format!("({joined})")
+    }
+}

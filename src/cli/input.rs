@@ -1,0 +1,96 @@
+//! Where a rule comes from: a file, `--game "[q; w...]"`, or the embedded
+//! demo; compiled, with errors rendered against their source.
+
+use std::path::Path;
+
+use clout_dsl::diagnostic::closest;
+use clout_dsl::{compile, render_all, CompiledRule, RuleFile};
+
+use super::Failure;
+
+/// The demo rule file analysed by `clout report` without arguments.
+pub const DEMO: &str = include_str!("../../examples/transit.clout");
+
+/// A compiled rule file and the text it came from.
+pub struct Input {
+    /// Shown in messages: the path, `--game` or `demo`.
+    pub name: String,
+    /// The source text.
+    pub source: String,
+    /// The compiled file.
+    pub file: RuleFile,
+    /// Came from the embedded demo.
+    pub demo: bool,
+}
+
+impl Input {
+    /// Loads and compiles; `None` for both means the demo when `demo_allowed`.
+    pub fn load(file: Option<&Path>, game: Option<&str>, demo_allowed: bool) -> Result<Input, Failure> {
+        match (file, game) {
+            (Some(path), _) => {
+                let source = std::fs::read_to_string(path).map_err(|e| {
+                    Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e)))
+                })?;
+                Input::compile(path.display().to_string(), source, false)
+            }
+            (None, Some(game)) => Input::compile("--game".to_string(), game.to_string(), false),
+            (None, None) if demo_allowed => Input::compile("demo".to_string(), DEMO.to_string(), true),
+            (None, None) => Err(Failure::input(
+                "no rule given: name a rule file, or pass `--game \"[q; w1, ..., wn]\"`".to_string(),
+            )),
+        }
+    }
+
+    fn compile(name: String, source: String, demo: bool) -> Result<Input, Failure> {
+        match compile(&source) {
+            Ok(file) => Ok(Input {
+                name,
+                source,
+                file,
+                demo,
+            }),
+            Err(errors) => {
+                let mut text = render_all(&errors, &name, &source);
+                let n = errors.len();
+                text.push_str(&format!("{n} error{} in {name}\n", if n == 1 { "" } else { "s" }));
+                Err(Failure::rendered(text))
+            }
+        }
+    }
+
+    /// The rule named by `--rule`, or the first.
+    pub fn rule(&self, name: Option<&str>) -> Result<&CompiledRule, Failure> {
+        if let Some(r) = self.file.rule(name) {
+            return Ok(r);
+        }
+        let wanted = name.unwrap_or_default();
+        let names: Vec<&str> = self.file.rules.iter().map(|r| r.name.as_str()).collect();
+        let hint = match closest(wanted, names.iter().copied()) {
+            Some(c) => format!("did you mean `{c}`?"),
+            None => format!("the rules of {} are: {}", self.name, names.join(", ")),
+        };
+        Err(Failure::input(format!(
+            "{}: no rule named `{wanted}`\n  = hint: {hint}",
+            self.name
+        )))
+    }
+
+    /// A title for headings.
+    pub fn title(&self) -> String {
+        match (&self.file.title, self.demo) {
+            (Some(t), true) => format!("{t} (fictional demo; `clout demo` prints its rule file)"),
+            (Some(t), false) => t.clone(),
+            (None, _) if self.name == "--game" => "weighted game given by --game".to_string(),
+            (None, _) => self.name.clone(),
+        }
+    }
+}
+
+fn describe_io(e: &std::io::Error) -> String {
+    match e.kind() {
+        std::io::ErrorKind::NotFound => "no such file".to_string(),
+        std::io::ErrorKind::InvalidData => "the file is not UTF-8 text".to_string(),
+        std::io::ErrorKind::PermissionDenied => "permission denied".to_string(),
+        _ => e.to_string(),
+    }
+}

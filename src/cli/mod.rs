@@ -1,0 +1,218 @@
+//! The `clout` command line: argument parsing, exit codes and output.
+//!
+//! Exit codes: 0 success; 1 warnings (`check` only); 2 bad input of any
+//! kind (unreadable file, a rule that does not compile, an unknown name, a
+//! computation over the work budget), with the message on stderr. Output
+//! is written once at the end, so a closed pipe ends the command quietly.
+
+mod check;
+mod decide;
+mod input;
+mod progress;
+mod report;
+mod text;
+
+use std::io::Write;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+/// Exact voting power for weighted, compound voting rules.
+///
+/// Write a rule in a `.clout` file (the language is described in the
+/// README), then ask for a power report, the outcome of one vote, or a
+/// check of the file.
+#[derive(Parser)]
+#[command(name = "clout", version, about, long_about = None, propagate_version = true)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Every member's swings and power indices, and the rule's properties.
+    ///
+    /// With no FILE and no --game, reports on an embedded fictional demo rule.
+    Report(ReportArgs),
+    /// The outcome of one vote: per-condition sums and quotas, and the critical members.
+    Decide(DecideArgs),
+    /// Compile rule files and print warnings (dummies, rules that are not proper).
+    ///
+    /// Exits 0 when clean, 1 on warnings, 2 on errors.
+    Check(CheckArgs),
+    /// Print the embedded demo rule file (a starting point for your own).
+    Demo,
+}
+
+#[derive(Args)]
+struct Source {
+    /// Rule file (`.clout`), or a file holding `[q; w1, ..., wn]`.
+    file: Option<PathBuf>,
+    /// The weighted game `[q; w1, ..., wn]` instead of a file (members p1..pn).
+    #[arg(long, value_name = "[q; w...]", conflicts_with = "file")]
+    game: Option<String>,
+    /// Which rule of the file (default: the first).
+    #[arg(long, value_name = "NAME")]
+    rule: Option<String>,
+}
+
+#[derive(Args)]
+struct ReportArgs {
+    #[command(flatten)]
+    source: Source,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    format: Format,
+    /// Counting engine (default: the planner's choice).
+    #[arg(long, value_enum, default_value_t = EngineChoice::Auto)]
+    engine: EngineChoice,
+    /// Most elementary steps the exact computation may take.
+    #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
+    budget: u128,
+}
+
+#[derive(Args)]
+struct DecideArgs {
+    #[command(flatten)]
+    source: Source,
+    /// Members voting yes: names, groups, blocs, ranges such as `rep1..rep218`, or `all`.
+    #[arg(long, value_name = "NAMES", value_delimiter = ',', num_args = 0..)]
+    yes: Vec<String>,
+    /// Members taken out of the yes list (same forms), e.g. `--yes all --no harbor`.
+    #[arg(long, value_name = "NAMES", value_delimiter = ',', num_args = 0..)]
+    no: Vec<String>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = DecideFormat::Text)]
+    format: DecideFormat,
+}
+
+#[derive(Args)]
+struct CheckArgs {
+    /// Rule files.
+    files: Vec<PathBuf>,
+    /// Check the weighted game `[q; w1, ..., wn]` instead of a file.
+    #[arg(long, value_name = "[q; w...]")]
+    game: Option<String>,
+    /// Most elementary steps the dummy and properness checks may take per rule.
+    #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
+    budget: u128,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Format {
+    Text,
+    Json,
+    Csv,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum DecideFormat {
+    Text,
+    Json,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum EngineChoice {
+    Auto,
+    Enumerate,
+    Profile,
+    Dense,
+    Diagram,
+}
+
+impl EngineChoice {
+    fn engine(self) -> Option<clout::Engine> {
+        let name = match self {
+            EngineChoice::Auto => return None,
+            EngineChoice::Enumerate => "enumerate",
+            EngineChoice::Profile => "profile",
+            EngineChoice::Dense => "dense",
+            EngineChoice::Diagram => "diagram",
+        };
+        clout::Engine::ALL.into_iter().find(|e| e.name() == name)
+    }
+}
+
+/// A step count such as `50000000000`, `50_000_000_000` or `5e10`.
+fn parse_steps(s: &str) -> Result<u128, String> {
+    let s = s.replace('_', "");
+    if let Ok(v) = s.parse::<u128>() {
+        return Ok(v);
+    }
+    let bad = || format!("`{s}` is not a step count (write e.g. 5e10 or 50000000000)");
+    let (mantissa, exponent) = s.split_once(['e', 'E']).ok_or_else(bad)?;
+    let m: u128 = mantissa.parse().map_err(|_| bad())?;
+    let e: u32 = exponent.parse().map_err(|_| bad())?;
+    10u128
+        .checked_pow(e)
+        .and_then(|p| p.checked_mul(m))
+        .ok_or_else(bad)
+}
+
+/// Why a command failed, and its exit code.
+pub struct Failure {
+    message: String,
+    code: u8,
+}
+
+impl Failure {
+    /// Bad input (exit 2), shown as `error: MESSAGE`.
+    fn input(message: String) -> Self {
+        Failure {
+            message: format!("error: {message}\n"),
+            code: 2,
+        }
+    }
+
+    /// Bad input (exit 2) whose message is already rendered.
+    fn rendered(message: String) -> Self {
+        Failure { message, code: 2 }
+    }
+}
+
+/// What a command produced: stdout text, stderr text and the exit code.
+pub struct Outcome {
+    stdout: String,
+    stderr: String,
+    code: u8,
+}
+
+impl Outcome {
+    fn ok(stdout: String) -> Self {
+        Outcome {
+            stdout,
+            stderr: String::new(),
+            code: 0,
+        }
+    }
+}
+
+/// Parses the arguments, runs the command and returns its exit code.
+pub fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            // Help and version go to stdout with 0; usage errors to stderr with 2.
+            let _ = e.print();
+            return ExitCode::from(if e.use_stderr() { 2 } else { 0 });
+        }
+    };
+    let outcome = match cli.command {
+        Command::Report(a) => report::run(&a),
+        Command::Decide(a) => decide::run(&a),
+        Command::Check(a) => Ok(check::run(&a)),
+        Command::Demo => Ok(Outcome::ok(input::DEMO.to_string())),
+    };
+    let outcome = outcome.unwrap_or_else(|f| Outcome {
+        stdout: String::new(),
+        stderr: f.message,
+        code: f.code,
+    });
+    // A closed pipe (`clout report | head`) is not an error of ours.
+    let _ = std::io::stdout().lock().write_all(outcome.stdout.as_bytes());
+    let _ = std::io::stdout().lock().flush();
+    let _ = std::io::stderr().lock().write_all(outcome.stderr.as_bytes());
+    ExitCode::from(outcome.code)
+}
