@@ -5,8 +5,8 @@ use alloc::vec;
 use alloc::vec::Vec;
 
 use crate::count::Counter;
-use crate::engine::{self, Engine, Workspace};
-use crate::planner::{plan, Plan, DEFAULT_BUDGET};
+use crate::engine::{self, Engine, Scope, Workspace};
+use crate::planner::{plan_for, Plan, DEFAULT_BUDGET};
 use crate::power::{MemberCounts, PowerTable, RuleCounts};
 use crate::{Error, Rule};
 
@@ -28,10 +28,30 @@ impl<C: Counter> Analysis<C> {
     }
 }
 
+/// What to compute and within which limits.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Options {
+    /// Force this engine instead of planning.
+    pub engine: Option<Engine>,
+    /// Every index, or swing counts only.
+    pub scope: Scope,
+    /// Most estimated steps the planner may choose.
+    pub budget: u128,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            engine: None,
+            scope: Scope::All,
+            budget: DEFAULT_BUDGET,
+        }
+    }
+}
+
 /// Plans within the default budget and counts with the chosen engine.
 pub fn analyze<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<Analysis<C>, Error> {
-    let p = plan(rule, DEFAULT_BUDGET)?;
-    run(rule, p)
+    analyze_opts(rule, &Options::default())
 }
 
 /// Counts with a forced engine.
@@ -39,18 +59,35 @@ pub fn analyze_with<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     engine: Engine,
 ) -> Result<Analysis<C>, Error> {
-    let mut p = plan(rule, u128::MAX).unwrap_or(Plan {
-        engine,
-        cost: 0,
-        costs: Engine::ALL.map(|e| (e, None)),
-    });
-    p.engine = engine;
-    p.cost = engine::cost(rule, engine)?;
-    run(rule, p)
+    analyze_opts(
+        rule,
+        &Options {
+            engine: Some(engine),
+            budget: u128::MAX,
+            ..Options::default()
+        },
+    )
 }
 
-fn run<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, plan: Plan) -> Result<Analysis<C>, Error> {
-    let need = engine::need(rule, plan.engine)?;
+/// Plans (or takes the forced engine) and counts, as `options` say.
+pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    options: &Options,
+) -> Result<Analysis<C>, Error> {
+    let plan = match options.engine {
+        None => plan_for(rule, options.scope, options.budget)?,
+        Some(engine) => {
+            let mut p = plan_for(rule, options.scope, u128::MAX).unwrap_or(Plan {
+                engine,
+                cost: 0,
+                costs: Engine::ALL.map(|e| (e, None)),
+            });
+            p.engine = engine;
+            p.cost = engine::cost_for(rule, engine, options.scope)?;
+            p
+        }
+    };
+    let need = engine::need_for(rule, plan.engine, options.scope)?;
     let mut counts = vec![C::ZERO; need.counts];
     let mut indices = vec![0u32; need.indices];
     let mut members = vec![MemberCounts::EMPTY; rule.members()];
@@ -58,7 +95,7 @@ fn run<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, plan: Plan) -> Result<Analys
         counts: &mut counts,
         indices: &mut indices,
     };
-    let totals = engine::try_count(rule, plan.engine, &mut members, work)?;
+    let totals = engine::try_count_for(rule, plan.engine, options.scope, &mut members, work)?;
     Ok(Analysis {
         rule: totals,
         members,

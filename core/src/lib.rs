@@ -96,4 +96,4 @@ pub use power::{MemberCounts, PowerTable, RuleCounts};
 pub use rule::{Atom, Node, Rule};
 
 #[cfg(feature = "alloc")]
-pub use analysis::{analyze, analyze_with, Analysis};
+pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};

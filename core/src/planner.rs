@@ -4,7 +4,7 @@
 //! (see [`crate::engine::cost`]); the planner picks the cheapest engine that
 //! can handle the rule and says why. Callers may force an engine instead.
 
-use crate::engine::{cost, Engine};
+use crate::engine::{cost_for, Engine, Scope};
 use crate::{Error, Rule};
 
 /// The planner's choice and its reasons.
@@ -24,11 +24,16 @@ pub struct Plan {
 /// `budget` steps, and with [`Error::EngineUnsuitable`] when no engine
 /// applies.
 pub fn plan<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Error> {
+    plan_for(rule, Scope::All, budget)
+}
+
+/// [`plan`] for a chosen [`Scope`].
+pub fn plan_for<W: AsRef<[u64]>>(rule: &Rule<W>, scope: Scope, budget: u128) -> Result<Plan, Error> {
     let mut costs = Engine::ALL.map(|e| (e, None));
     let mut best: Option<(Engine, u128)> = None;
     for slot in costs.iter_mut() {
         let engine = slot.0;
-        let c = cost(rule, engine).ok();
+        let c = cost_for(rule, engine, scope).ok();
         slot.1 = c;
         if let Some(c) = c {
             if best.is_none_or(|(_, b)| c < b) {

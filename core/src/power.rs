@@ -79,6 +79,8 @@ pub struct RuleCounts<C> {
     pub strong: bool,
     /// `n!`, the Shapley-Shubik denominator, when it fits in the count type.
     pub factorial: Option<C>,
+    /// Whether the Shapley-Shubik values were computed (see [`crate::engine::Scope`]).
+    pub shapley_shubik: bool,
     /// The engine that produced the counts.
     pub engine: Engine,
 }
@@ -140,9 +142,15 @@ impl<'a, C: Counter> PowerTable<'a, C> {
         }
     }
 
-    /// Shapley-Shubik index.
+    /// Shapley-Shubik index (0 for every member when the engine was asked
+    /// for swings only; see [`Self::has_shapley_shubik`]).
     pub fn shapley_shubik(&self, i: usize) -> f64 {
         self.member(i).shapley_shubik
+    }
+
+    /// Whether Shapley-Shubik values were computed.
+    pub fn has_shapley_shubik(&self) -> bool {
+        self.rule.shapley_shubik
     }
 
     /// Shapley-Shubik index as an exact fraction `(numerator, n!)`, when it fits.

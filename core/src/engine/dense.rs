@@ -104,28 +104,39 @@ impl Space {
     }
 }
 
-pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
+pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>, sizes: bool) -> Result<Need, Error> {
     let sp = space(rule)?;
     let n = rule.members();
+    if cfg!(feature = "alloc") && !sizes && sp.dims == 1 {
+        // The residue path allocates its own word tables.
+        return Ok(Need {
+            counts: 0,
+            indices: 2 * n + 1,
+        });
+    }
+    let rows = if sizes || sp.dims > 1 { n + 1 } else { 1 };
     let division_rows = if sp.dims == 1 {
         2 * (sp.caps[0] as usize + 1)
     } else {
         0
     };
     Ok(Need {
-        counts: (n + 1) * sp.per_row + division_rows + n,
+        counts: rows * sp.per_row + division_rows + n,
         indices: 2 * n + 1,
     })
 }
 
-pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
+pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, sizes: bool) -> Result<u128, Error> {
     let sp = space(rule)?;
     let n = rule.members() as u128;
-    let build = n * (n + 1) / 2 * sp.per_row as u128 * sp.dims.max(1) as u128;
+    let p = sp.per_row as u128;
     if sp.dims <= 1 {
-        Ok(build + n * n * sp.per_row as u128)
+        // Build plus one division per type (at most n types).
+        let rows = if sizes { n + 1 } else { 1 };
+        Ok((n * rows * p).saturating_mul(2))
     } else {
         // One rebuild per type; the planner cannot sort, so assume n types.
+        let build = n * (n + 1) / 2 * p * sp.dims as u128;
         Ok(build.saturating_mul(n + 1))
     }
 }
@@ -170,24 +181,233 @@ fn build<W: AsRef<[u64]>, C: Counter>(
     Ok(())
 }
 
+/// The single-attribute engine: one table, one division per member type.
+///
+/// Losing states are exactly the sums below `first_win` (one attribute and
+/// a monotone formula make a threshold), so no formula is evaluated per
+/// state. With `sizes` the table has one row per coalition size and
+/// Shapley-Shubik pivots are counted; without, one row and swings only.
+fn count_single<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    sp: &Space,
+    members: &mut [MemberCounts<C>],
+    work: Workspace<'_, C>,
+    sizes: bool,
+) -> Result<RuleCounts<C>, Error> {
+    let n = rule.members();
+    let attr = sp.attrs[0];
+    let cap = sp.caps[0] as usize;
+    let p = cap + 1;
+    let rows = if sizes { n + 1 } else { 1 };
+    let attributes = rule.attributes();
+    let (order, starts) = work.indices.split_at_mut(n);
+    let types = group_types(rule, rule.used_attributes(), order, starts);
+    let wins_sum = |s: u64| {
+        let mut sums = [0u64; MAX_ATTRIBUTES];
+        sums[attr] = s;
+        rule.passes_with_sums(&sums[..attributes])
+    };
+    // Least winning sum (cap + 1 when nothing wins), by binary search.
+    let first_win = {
+        let (mut lo, mut hi) = (0usize, p);
+        while lo < hi {
+            let mid = (lo + hi) / 2;
+            if wins_sum(mid as u64) {
+                hi = mid;
+            } else {
+                lo = mid + 1;
+            }
+        }
+        lo
+    };
+    let total = rule.total(attr);
+    #[cfg(feature = "alloc")]
+    if !sizes {
+        let mut out = super::residue::count(rule, attr, cap, order, starts, types, members)?;
+        out.smallest_winning = greedy_smallest(rule, attr, order, first_win, p);
+        return Ok(out);
+    }
+    let (table, rest) = work.counts.split_at_mut(rows * p);
+    let (scratch, rest) = rest.split_at_mut(2 * p);
+    let pivots = &mut rest[..n];
+
+    for c in table.iter_mut() {
+        *c = C::ZERO;
+    }
+    table[0] = C::ONE;
+    for (filled, i) in (0..n).enumerate() {
+        let w = rule.weight(attr, i) as usize;
+        if sizes {
+            for k in (0..=filled).rev() {
+                let (low, high) = table.split_at_mut((k + 1) * p);
+                let row = &low[k * p..];
+                let next = &mut high[..p];
+                for (s, &c) in row.iter().enumerate() {
+                    if !c.is_zero() {
+                        let t = (s + w).min(cap);
+                        next[t] = next[t].add(c)?;
+                    }
+                }
+            }
+        } else {
+            // In place: every target index is at or above its source, so a
+            // descending sweep reads only values not yet updated. The cap
+            // bucket collects all sums at or above the cap.
+            let into_cap = (cap.saturating_sub(w)..=cap).try_fold(C::ZERO, |a, s| a.add(table[s]))?;
+            for s in (0..cap.saturating_sub(w)).rev() {
+                table[s + w] = table[s + w].add(table[s])?;
+            }
+            table[cap] = table[cap].add(into_cap)?;
+        }
+    }
+
+    let mut out = RuleCounts {
+        members: n,
+        winning: C::ZERO,
+        losing: C::ZERO,
+        minimal_winning: None,
+        minimal_blocking: None,
+        smallest_winning: None,
+        proper: true,
+        strong: true,
+        factorial: None,
+        shapley_shubik: true,
+        engine: Engine::Dense,
+    };
+    for k in 0..rows {
+        let row = &table[k * p..(k + 1) * p];
+        for (s, &c) in row.iter().enumerate() {
+            if c.is_zero() {
+                continue;
+            }
+            // The complement's sum is exact whenever it matters (see the cap).
+            let complement = wins_sum(total.saturating_sub(s as u64));
+            if s >= first_win {
+                out.winning = out.winning.add(c)?;
+                if sizes {
+                    out.smallest_winning = Some(out.smallest_winning.map_or(k, |m| m.min(k)));
+                }
+                out.proper &= !complement;
+            } else {
+                out.losing = out.losing.add(c)?;
+                out.strong &= complement;
+            }
+        }
+    }
+    if !sizes {
+        out.smallest_winning = greedy_smallest(rule, attr, order, first_win, p);
+    }
+
+    let (prev, cur) = scratch.split_at_mut(p);
+    for t in 0..types {
+        let rep = order[starts[t] as usize] as usize;
+        let w = rule.weight(attr, rep) as usize;
+        for c in pivots.iter_mut() {
+            *c = C::ZERO;
+        }
+        if w == 0 {
+            // Adding nothing to a sum changes no outcome: a dummy.
+            for &m in &order[starts[t] as usize..starts[t + 1] as usize] {
+                members[m as usize] = MemberCounts::EMPTY;
+            }
+            let (ss, numerator) = shapley_from_sizes(n, pivots)?;
+            for &m in &order[starts[t] as usize..starts[t + 1] as usize] {
+                members[m as usize].shapley_shubik = ss;
+                members[m as usize].shapley_shubik_numerator = if sizes { numerator } else { None };
+            }
+            continue;
+        }
+        // G_k[s] = F_k[s] - G_{k-1}[s - w] (without sizes: G[s] = F[s] - G[s - w]),
+        // exact on losing states, which all lie below the cap.
+        let lose = first_win.min(p);
+        for c in prev.iter_mut() {
+            *c = C::ZERO;
+        }
+        for k in 0..rows.min(n) {
+            for s in 0..lose {
+                let below = if s >= w {
+                    if sizes {
+                        if k > 0 {
+                            prev[s - w]
+                        } else {
+                            C::ZERO
+                        }
+                    } else {
+                        cur[s - w]
+                    }
+                } else {
+                    C::ZERO
+                };
+                cur[s] = table[k * p + s].sub(below)?;
+            }
+            // Swing: losing without the member, winning with it.
+            let from = lose.saturating_sub(w);
+            let swing = cur[from..lose].iter().try_fold(C::ZERO, |a, &c| a.add(c))?;
+            pivots[k] = pivots[k].add(swing)?;
+            if sizes {
+                prev[..lose].copy_from_slice(&cur[..lose]);
+            }
+        }
+        let value = if sizes {
+            let (ss, numerator) = shapley_from_sizes(n, pivots)?;
+            MemberCounts {
+                swings: sum_counts(pivots)?,
+                shapley_shubik: ss,
+                shapley_shubik_numerator: numerator,
+                ..MemberCounts::EMPTY
+            }
+        } else {
+            MemberCounts {
+                swings: pivots[0],
+                ..MemberCounts::EMPTY
+            }
+        };
+        for &m in &order[starts[t] as usize..starts[t + 1] as usize] {
+            members[m as usize] = value;
+        }
+    }
+    Ok(out)
+}
+
+/// Smallest winning coalition of a one-attribute rule: heaviest members
+/// first (`order` is sorted by ascending weight).
+fn greedy_smallest<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    attr: usize,
+    order: &[u32],
+    first_win: usize,
+    states: usize,
+) -> Option<usize> {
+    if first_win >= states {
+        return None;
+    }
+    let mut sum = 0u64;
+    for (k, &m) in order.iter().rev().enumerate() {
+        if sum >= first_win as u64 {
+            return Some(k);
+        }
+        sum = sum.saturating_add(rule.weight(attr, m as usize));
+    }
+    (sum >= first_win as u64).then_some(order.len())
+}
+
 pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
+    sizes: bool,
 ) -> Result<RuleCounts<C>, Error> {
     let sp = space(rule)?;
+    if sp.dims == 1 {
+        return count_single(rule, &sp, members, work, sizes);
+    }
     let n = rule.members();
     let attributes = rule.attributes();
     let p = sp.per_row;
     let (order, starts) = work.indices.split_at_mut(n);
     let types = group_types(rule, rule.used_attributes(), order, starts);
     let (table, rest) = work.counts.split_at_mut((n + 1) * p);
-    let (rows, pivots) = rest.split_at_mut(if sp.dims == 1 {
-        2 * (sp.caps[0] as usize + 1)
-    } else {
-        0
-    });
-    let pivots = &mut pivots[..n];
+    let pivots = &mut rest[..n];
     let mut totals = [0u64; MAX_ATTRIBUTES];
     for (a, t) in totals.iter_mut().enumerate().take(attributes) {
         *t = rule.total(a);
@@ -218,6 +438,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         proper: true,
         strong: true,
         factorial: None,
+        shapley_shubik: true,
         engine: Engine::Dense,
     };
     for k in 0..=n {
@@ -246,17 +467,13 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         for c in pivots.iter_mut() {
             *c = C::ZERO;
         }
-        if sp.dims == 1 {
-            divide_out(rule, &sp, table, rows, pivots, rep, &wins_at)?;
-        } else {
-            // Rebuild without one member of this type, then test every state.
-            build(rule, &sp, table, Some(rep))?;
-            for k in 0..n {
-                for s in 0..p {
-                    let c = table[k * p + s];
-                    if !c.is_zero() && !wins_at(s) && wins_at(sp.shifted(rule, s, rep)) {
-                        pivots[k] = pivots[k].add(c)?;
-                    }
+        // Rebuild without one member of this type, then test every state.
+        build(rule, &sp, table, Some(rep))?;
+        for k in 0..n {
+            for s in 0..p {
+                let c = table[k * p + s];
+                if !c.is_zero() && !wins_at(s) && wins_at(sp.shifted(rule, s, rep)) {
+                    pivots[k] = pivots[k].add(c)?;
                 }
             }
         }
@@ -274,42 +491,46 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     Ok(out)
 }
 
-/// Divides the factor (1 + y x^w) of `member` out of the single-attribute
-/// table row by row and accumulates the member's pivots by size.
-fn divide_out<W: AsRef<[u64]>, C: Counter>(
-    rule: &Rule<W>,
-    sp: &Space,
-    table: &[C],
-    rows: &mut [C],
-    pivots: &mut [C],
-    member: usize,
-    wins_at: &impl Fn(usize) -> bool,
-) -> Result<(), Error> {
-    let n = rule.members();
-    let cap = sp.caps[0] as usize;
-    let p = cap + 1;
-    let w = rule.weight(sp.attrs[0], member) as usize;
-    let (prev, cur) = rows.split_at_mut(p);
-    for c in prev.iter_mut() {
-        *c = C::ZERO;
-    }
-    // G_k[s] = F_k[s] - G_{k-1}[s - w], exact for every losing state s
-    // (losing states lie below the cap).
-    for k in 0..n {
-        for s in 0..p {
-            if wins_at(s) {
-                cur[s] = C::ZERO;
-                continue;
+#[cfg(test)]
+mod tests {
+    use crate::analysis::{analyze_opts, analyze_with, Options};
+    use crate::engine::Scope;
+    use crate::{Atom, Engine, Node, Rule};
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+        /// Both scopes of the single-attribute path against enumeration,
+        /// zero weights and unreachable or trivial quotas included.
+        #[test]
+        fn single_attribute_matches_enumeration(
+            w in prop::collection::vec(0u64..9, 1..12),
+            share in 0u64..=110,
+            two in any::<bool>(),
+        ) {
+            let n = w.len();
+            let total: u64 = w.iter().sum();
+            let q = total * share / 100;
+            let atoms = [Atom { attribute: 0, quota: q }, Atom { attribute: 0, quota: q / 2 + 1 }];
+            let f: &[Node] = if two { &[Node::Atom(0), Node::Atom(1), Node::Any(2)] } else { &[Node::Atom(0)] };
+            let rule = Rule::new(n, w.clone(), &atoms, f).unwrap();
+            let oracle = analyze_with::<_, u128>(&rule, Engine::Enumerate).unwrap();
+            for scope in [Scope::All, Scope::Swings] {
+                let opts = Options { engine: Some(Engine::Dense), scope, ..Options::default() };
+                let got = analyze_opts::<_, u128>(&rule, &opts).unwrap();
+                prop_assert_eq!(got.rule.winning, oracle.rule.winning);
+                prop_assert_eq!(got.rule.losing, oracle.rule.losing);
+                prop_assert_eq!(got.rule.proper, oracle.rule.proper);
+                prop_assert_eq!(got.rule.strong, oracle.rule.strong);
+                prop_assert_eq!(got.rule.smallest_winning, oracle.rule.smallest_winning);
+                prop_assert_eq!(got.rule.shapley_shubik, scope == Scope::All);
+                for i in 0..n {
+                    prop_assert_eq!(got.members[i].swings, oracle.members[i].swings, "member {}", i);
+                    if scope == Scope::All {
+                        prop_assert_eq!(got.members[i].shapley_shubik_numerator, oracle.members[i].shapley_shubik_numerator);
+                    }
+                }
             }
-            let below = if k > 0 && s >= w { prev[s - w] } else { C::ZERO };
-            cur[s] = table[k * p + s].sub(below)?;
         }
-        for (s, &c) in cur.iter().enumerate() {
-            if !c.is_zero() && wins_at((s + w).min(cap)) {
-                pivots[k] = pivots[k].add(c)?;
-            }
-        }
-        prev.copy_from_slice(cur);
     }
-    Ok(())
 }

@@ -638,6 +638,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
             proper: r.proper,
             strong: r.strong,
             factorial: None,
+            shapley_shubik: true,
             engine: Engine::Diagram,
         });
     }
@@ -672,6 +673,7 @@ fn count_as<W: AsRef<[u64]>, C: Counter>(
         proper,
         strong,
         factorial: None,
+        shapley_shubik: true,
         engine: Engine::Diagram,
     })
 }

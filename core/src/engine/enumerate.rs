@@ -107,6 +107,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         proper: true,
         strong: true,
         factorial: None,
+        shapley_shubik: true,
         engine: Engine::Enumerate,
     };
     let mut mask: u64 = 0;

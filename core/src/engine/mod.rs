@@ -16,6 +16,8 @@ pub(crate) mod dense;
 pub mod diagram;
 pub(crate) mod enumerate;
 pub(crate) mod profile;
+#[cfg(feature = "alloc")]
+pub(crate) mod residue;
 
 use crate::count::{ratio, Counter};
 use crate::limits::MAX_ATTRIBUTES;
@@ -87,12 +89,27 @@ pub struct Workspace<'a, C> {
     pub indices: &'a mut [u32],
 }
 
+/// What to count.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Scope {
+    /// Every index the engine can give, Shapley-Shubik included.
+    All,
+    /// Swing counts only (Banzhaf, Penrose, Coleman); some engines are much
+    /// faster this way (the dense engine drops its coalition-size dimension).
+    Swings,
+}
+
 /// How much scratch `engine` needs for `rule`.
 pub fn need<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<Need, Error> {
+    need_for(rule, engine, Scope::All)
+}
+
+/// How much scratch `engine` needs for `rule` and `scope`.
+pub fn need_for<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine, scope: Scope) -> Result<Need, Error> {
     match engine {
         Engine::Enumerate => enumerate::need(rule),
         Engine::Profile => profile::need(rule),
-        Engine::Dense => dense::need(rule),
+        Engine::Dense => dense::need(rule, scope == Scope::All),
         // The diagram engine allocates its own storage (feature `alloc`).
         Engine::Diagram => diagram_need(),
     }
@@ -100,10 +117,15 @@ pub fn need<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<Need, Err
 
 /// Estimated work of `engine` on `rule`, in elementary steps (saturating).
 pub fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<u128, Error> {
+    cost_for(rule, engine, Scope::All)
+}
+
+/// Estimated work of `engine` on `rule` for `scope`.
+pub fn cost_for<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine, scope: Scope) -> Result<u128, Error> {
     match engine {
         Engine::Enumerate => enumerate::cost(rule),
         Engine::Profile => profile::cost(rule),
-        Engine::Dense => dense::cost(rule),
+        Engine::Dense => dense::cost(rule, scope == Scope::All),
         Engine::Diagram => diagram_cost(rule),
     }
 }
@@ -142,6 +164,18 @@ pub fn try_count<W: AsRef<[u64]>, C: Counter>(
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
 ) -> Result<RuleCounts<C>, Error> {
+    try_count_for(rule, engine, Scope::All, members, work)
+}
+
+/// [`try_count`] for a chosen [`Scope`]. With [`Scope::Swings`] an engine
+/// may skip Shapley-Shubik ([`RuleCounts::shapley_shubik`] says whether it did).
+pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    engine: Engine,
+    scope: Scope,
+    members: &mut [MemberCounts<C>],
+    work: Workspace<'_, C>,
+) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     if members.len() < n {
         return Err(Error::ScratchTooSmall {
@@ -149,7 +183,7 @@ pub fn try_count<W: AsRef<[u64]>, C: Counter>(
             given: members.len(),
         });
     }
-    let needed = need(rule, engine)?;
+    let needed = need_for(rule, engine, scope)?;
     if work.counts.len() < needed.counts {
         return Err(Error::ScratchTooSmall {
             needed: needed.counts,
@@ -169,11 +203,12 @@ pub fn try_count<W: AsRef<[u64]>, C: Counter>(
     let mut counts = match engine {
         Engine::Enumerate => enumerate::count(rule, members, work)?,
         Engine::Profile => profile::count(rule, members, work)?,
-        Engine::Dense => dense::count(rule, members, work)?,
+        Engine::Dense => dense::count(rule, members, work, scope == Scope::All)?,
         Engine::Diagram => diagram_count(rule, members)?,
     };
     mark_veto_and_dictators(rule, members);
     counts.factorial = factorial(n).ok();
+    counts.shapley_shubik = !(engine == Engine::Dense && scope == Scope::Swings);
     Ok(counts)
 }
 

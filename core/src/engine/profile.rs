@@ -176,6 +176,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         proper: true,
         strong: true,
         factorial: None,
+        shapley_shubik: true,
         engine: Engine::Profile,
     };
     for d in digits.iter_mut() {
