@@ -85,6 +85,8 @@ mod rule;
 
 #[cfg(feature = "alloc")]
 mod analysis;
+#[cfg(feature = "alloc")]
+pub mod approx;
 
 pub use coalition::{Coalition, Members};
 pub use count::{Count1024, Counter, Wide};
