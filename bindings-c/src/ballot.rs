@@ -1,0 +1,294 @@
+//! Deciding ballots: outcome, per-condition sums, critical members.
+//!
+//! A ballot is a bit array of `uint64_t` words (member i at bit i % 64 of
+//! word i / 64) or a list of member indices. Rules of up to 64 members use a
+//! one-word ballot; larger ones a 1,024-word ballot (8 KiB). Each width has
+//! its own out-of-line path, built in place, so a one-word decision never
+//! reserves stack for a wide ballot. Nothing allocates.
+//!
+//! The outcome is the core's own evaluation: the yes-sums of
+//! `Rule::yes_sums` and the formula of `Rule::passes_with_sums`, which is
+//! what `Rule::passes` and `decide` compute (a test compares them).
+
+use core::mem::MaybeUninit;
+
+use clout_core::limits::MAX_ATTRIBUTES;
+use clout_core::{critical as critical_of, Coalition};
+
+use crate::ffi::{self, clout_rule, LoadedRule};
+use crate::status::clout_result;
+
+/// The outcome of one ballot.
+#[repr(C)]
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct clout_outcome {
+    /// Whether the motion passes.
+    pub passed: bool,
+    /// Number of conditions, and of sums written.
+    pub conditions: u32,
+    /// Bit k is set when condition k is met.
+    pub met: u64,
+}
+
+/// Words in the ballot of a rule too large for one word (65,536 members).
+const WIDE: usize = 1024;
+
+/// A ballot as C gave it.
+#[derive(Clone, Copy)]
+enum Ballot<'a> {
+    Words(&'a [u64]),
+    List(&'a [u32]),
+}
+
+impl Ballot<'_> {
+    /// Fills the empty `ballot` after checking this one against the rule.
+    fn fill<const B: usize>(self, rule: &LoadedRule, ballot: &mut Coalition<B>) -> Result<(), clout_result> {
+        match self {
+            Ballot::Words(words) => fill_from_words(rule, words, ballot),
+            Ballot::List(members) => fill_from_list(rule, members, ballot),
+        }
+    }
+}
+
+fn fill_from_words<const B: usize>(
+    rule: &LoadedRule,
+    words: &[u64],
+    ballot: &mut Coalition<B>,
+) -> Result<(), clout_result> {
+    let needed = rule.members().div_ceil(64);
+    if words.len() < needed {
+        return Err(clout_result::BufferTooSmall);
+    }
+    let (used, rest) = words.split_at(needed);
+    if rest.iter().any(|&w| w != 0) {
+        return Err(clout_result::BallotMember);
+    }
+    if B == 1 {
+        *ballot = Coalition::from_words([used.first().copied().unwrap_or(0); B]);
+    } else {
+        for (w, &word) in used.iter().enumerate() {
+            let mut bits = word;
+            while bits != 0 {
+                ballot.insert(w * 64 + bits.trailing_zeros() as usize)?;
+                bits &= bits - 1;
+            }
+        }
+    }
+    if ballot.has_member_at_or_beyond(rule.members()) {
+        return Err(clout_result::BallotMember);
+    }
+    Ok(())
+}
+
+fn fill_from_list<const B: usize>(
+    rule: &LoadedRule,
+    members: &[u32],
+    ballot: &mut Coalition<B>,
+) -> Result<(), clout_result> {
+    for &m in members {
+        let m = ffi::index_usize(m);
+        if m >= rule.members() {
+            return Err(clout_result::BallotMember);
+        }
+        if ballot.contains(m) {
+            return Err(clout_result::BallotDuplicate);
+        }
+        ballot.insert(m)?;
+    }
+    Ok(())
+}
+
+/// Where a decision goes.
+struct Report<'a> {
+    sums: &'a mut [MaybeUninit<u64>],
+    outcome: &'a mut MaybeUninit<clout_outcome>,
+}
+
+/// Decides one ballot and writes the sums and the outcome.
+fn decide(rule: &LoadedRule, ballot: Ballot<'_>, out: Report<'_>) -> Result<(), clout_result> {
+    if out.sums.len() < rule.atoms().len() {
+        return Err(clout_result::BufferTooSmall);
+    }
+    if rule.members() <= 64 {
+        decide_with::<1>(rule, ballot, out)
+    } else {
+        decide_with::<WIDE>(rule, ballot, out)
+    }
+}
+
+#[inline(never)]
+fn decide_with<const B: usize>(
+    rule: &LoadedRule,
+    ballot: Ballot<'_>,
+    out: Report<'_>,
+) -> Result<(), clout_result> {
+    let mut yes = Coalition::<B>::EMPTY;
+    ballot.fill(rule, &mut yes)?;
+    let mut sums = [0u64; MAX_ATTRIBUTES];
+    rule.yes_sums(&yes, &mut sums)?;
+    let passed = rule.passes_with_sums(&sums[..rule.attributes()]);
+    let mut met = 0u64;
+    for (k, (slot, atom)) in out.sums.iter_mut().zip(rule.atoms()).enumerate() {
+        let sum = sums.get(usize::from(atom.attribute)).copied().unwrap_or(0);
+        slot.write(sum);
+        met |= u64::from(sum >= atom.quota) << k;
+    }
+    out.outcome.write(clout_outcome {
+        passed,
+        conditions: ffi::count_u32(rule.atoms().len()),
+        met,
+    });
+    Ok(())
+}
+
+/// The body of both decide exports: checks, decides, reports.
+fn decide_export<'a>(
+    rule: *const clout_rule,
+    ballot: impl FnOnce() -> Result<Ballot<'a>, clout_result>,
+    sums: *mut u64,
+    sums_len: usize,
+    outcome: *mut clout_outcome,
+) -> clout_result {
+    ffi::guard(|| {
+        let rule = ffi::rule(rule)?;
+        let ballot = ballot()?;
+        let out = Report {
+            sums: ffi::output(sums, sums_len)?,
+            outcome: ffi::out_param(outcome)?,
+        };
+        decide(rule, ballot, out)
+    })
+}
+
+/// Decides a ballot given as a bit array: `yes_words` words at `yes` (at
+/// least `(members + 63) / 64`; bits at or beyond `members` must be 0).
+/// Writes one sum per condition (the sum of its attribute over the
+/// yes-voters) into `sums` (`sums_len >= conditions`) and the outcome into
+/// `*outcome`. No heap; thread-safe for a shared rule.
+#[no_mangle]
+pub extern "C" fn clout_decide(
+    rule: *const clout_rule,
+    yes: *const u64,
+    yes_words: usize,
+    sums: *mut u64,
+    sums_len: usize,
+    outcome: *mut clout_outcome,
+) -> clout_result {
+    let ballot = || Ok(Ballot::Words(ffi::input(yes, yes_words)?));
+    decide_export(rule, ballot, sums, sums_len, outcome)
+}
+
+/// Decides a ballot given as the list of yes-voters: `yes_len` member
+/// indices at `yes` (each below `members`, none twice; `yes_len` may be 0
+/// with a non-NULL pointer). Outputs as for `clout_decide`.
+#[no_mangle]
+pub extern "C" fn clout_decide_members(
+    rule: *const clout_rule,
+    yes: *const u32,
+    yes_len: usize,
+    sums: *mut u64,
+    sums_len: usize,
+    outcome: *mut clout_outcome,
+) -> clout_result {
+    let ballot = || Ok(Ballot::List(ffi::input(yes, yes_len)?));
+    decide_export(rule, ballot, sums, sums_len, outcome)
+}
+
+/// Lists the critical members of a bit-array ballot (as for
+/// `clout_decide`): those whose switch alone would flip the outcome — the
+/// yes-voters of a passing ballot who would make it fail by voting no, or
+/// the no-voters of a failing ballot who would make it pass by voting yes.
+/// Writes their indices in increasing order into `critical` (`critical_len`
+/// entries; `members` always suffices) and their number into `*count`.
+#[no_mangle]
+pub extern "C" fn clout_critical(
+    rule: *const clout_rule,
+    yes: *const u64,
+    yes_words: usize,
+    critical: *mut u32,
+    critical_len: usize,
+    count: *mut usize,
+) -> clout_result {
+    ffi::guard(|| {
+        let rule = ffi::rule(rule)?;
+        let words = ffi::input(yes, yes_words)?;
+        let out = ffi::output(critical, critical_len)?;
+        let count = ffi::out_param(count)?;
+        if rule.members() <= 64 {
+            critical_with::<1>(rule, words, out, count)
+        } else {
+            critical_with::<WIDE>(rule, words, out, count)
+        }
+    })
+}
+
+#[inline(never)]
+fn critical_with<const B: usize>(
+    rule: &LoadedRule,
+    words: &[u64],
+    out: &mut [MaybeUninit<u32>],
+    count: &mut MaybeUninit<usize>,
+) -> Result<(), clout_result> {
+    let mut yes = Coalition::<B>::EMPTY;
+    fill_from_words(rule, words, &mut yes)?;
+    let found = critical_of(rule, &yes)?;
+    if out.len() < found.len() {
+        return Err(clout_result::BufferTooSmall);
+    }
+    for (slot, m) in out.iter_mut().zip(found.iter()) {
+        slot.write(ffi::index_u32(m));
+    }
+    count.write(found.len());
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clout_core::{image, Atom, Node, Rule};
+
+    /// Deciding through the C ABI gives the core's `decide` outcome and
+    /// tallies, on a 27-member double majority and on 1,000 ballots.
+    #[test]
+    fn c_decisions_match_the_core() {
+        let n = 27;
+        let mut w = vec![1u64; n];
+        w.extend((0..n as u64).map(|i| 1_000_000 + i * i * 37_000));
+        let total: u64 = w[n..].iter().sum();
+        let atoms = [
+            Atom {
+                attribute: 0,
+                quota: 15,
+            },
+            Atom {
+                attribute: 1,
+                quota: (total * 65).div_ceil(100),
+            },
+        ];
+        let source = Rule::new(n, w, &atoms, &[Node::Atom(0), Node::Atom(1), Node::All(2)]).unwrap();
+        let bytes = image::encode(&source);
+        let mut handle = core::ptr::null_mut();
+        assert_eq!(
+            crate::clout_rule_new(bytes.as_ptr(), bytes.len(), &mut handle),
+            clout_result::Ok
+        );
+        let mut state = 0x9E37_79B9_7F4A_7C15u64;
+        for _ in 0..1000 {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            let word = state & ((1 << n) - 1);
+            let mut sums = [0u64; 2];
+            let mut outcome = clout_outcome::default();
+            let code = clout_decide(handle, &word, 1, sums.as_mut_ptr(), 2, &mut outcome);
+            assert_eq!(code, clout_result::Ok);
+            let expected = clout_core::decide(&source, &Coalition::<1>::from_words([word])).unwrap();
+            assert_eq!(outcome.passed, expected.passed);
+            for (k, t) in expected.tallies.iter().enumerate() {
+                assert_eq!(sums[k], t.sum);
+                assert_eq!((outcome.met >> k) & 1 == 1, t.met);
+            }
+        }
+        assert_eq!(crate::clout_rule_free(handle), clout_result::Ok);
+    }
+}
