@@ -134,3 +134,64 @@ pub fn ballots(n: usize, count: usize, seed: u64) -> Vec<crate::Coalition<1>> {
         })
         .collect()
 }
+
+/// assembly-1000: members with weights 1, 2, ..., 1000; passage by more
+/// than half of the total weight.
+pub fn assembly_1000() -> Rule<Vec<u64>> {
+    let w: Vec<u64> = (1..=1000).collect();
+    let total: u64 = w.iter().sum();
+    Rule::weighted(crate::quota::more_than_share(1, 2, total).expect("share"), w).expect("valid scenario")
+}
+
+/// Heavy-tailed fictional token balances: the largest near 10^18, then
+/// falling like a power law, with noise; the total stays below 2^64.
+pub fn token_balances(n: usize) -> Vec<u64> {
+    let mut rng = Lcg(10_000);
+    (0..n)
+        .map(|i| {
+            let base = 1.0e18 / ((i + 1) as f64).powf(1.2);
+            let noise = 1.0 + (rng.next_u64() % 1000) as f64 / 10_000.0;
+            ((base * noise) as u64).max(1_000 + rng.next_u64() % 1_000)
+        })
+        .collect()
+}
+
+/// token-10000: 10,000 holders with heavy-tailed balances; passage by more
+/// than half of all tokens.
+pub fn token_10000() -> Rule<Vec<u64>> {
+    let w = token_balances(10_000);
+    let total: u64 = w.iter().sum();
+    Rule::weighted(crate::quota::more_than_share(1, 2, total).expect("share"), w).expect("valid scenario")
+}
+
+/// The first `n` members of union-27 under the same rule shape (for
+/// extrapolating enumeration time).
+pub fn union_prefix(n: usize) -> Rule<Vec<u64>> {
+    let pop: Vec<u64> = union_27_populations().into_iter().take(n).collect();
+    let total: u64 = pop.iter().sum();
+    let mut w = vec![1u64; n];
+    w.extend(&pop);
+    let count_quota = (15 * n as u64).div_ceil(27);
+    let atoms = [
+        Atom {
+            attribute: 0,
+            quota: count_quota,
+        },
+        Atom {
+            attribute: 1,
+            quota: crate::quota::at_least_share(65, 100, total).expect("share"),
+        },
+        Atom {
+            attribute: 0,
+            quota: (n as u64).saturating_sub(3),
+        },
+    ];
+    let f = [
+        Node::Atom(0),
+        Node::Atom(1),
+        Node::All(2),
+        Node::Atom(2),
+        Node::Any(2),
+    ];
+    Rule::new(n, w, &atoms, &f).expect("valid scenario")
+}
