@@ -190,6 +190,12 @@ fn engines_refuse_what_they_cannot_do() {
     let w: Vec<u64> = (0..40).map(|i| 1_000_000_007u64 * (i + 1)).collect();
     let total: u64 = w.iter().sum();
     let r = Rule::weighted(total / 2 + 1, w).unwrap();
-    assert_eq!(clout::planner::plan(&r, u128::MAX).unwrap().engine, Engine::Diagram);
-    assert!(matches!(clout::planner::plan(&r, 1 << 20), Err(Error::TooCostly { .. })));
+    assert_eq!(
+        clout::planner::plan(&r, u128::MAX).unwrap().engine,
+        Engine::Diagram
+    );
+    assert!(matches!(
+        clout::planner::plan(&r, 1 << 20),
+        Err(Error::TooCostly { .. })
+    ));
 }

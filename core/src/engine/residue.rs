@@ -147,9 +147,7 @@ fn range_sum(t: &[u32], (lo, hi): (usize, usize), p: u32) -> u32 {
     if lo > hi || lo >= t.len() {
         return 0;
     }
-    t[lo..=hi.min(t.len() - 1)]
-        .iter()
-        .fold(0, |a, &x| add32(a, x, p))
+    t[lo..=hi.min(t.len() - 1)].iter().fold(0, |a, &x| add32(a, x, p))
 }
 
 fn pass(shape: &Shape<'_>, p: u32) -> Pass {
@@ -379,13 +377,23 @@ mod tests {
         for q in [1u64, 150, 211, 300, 420] {
             let rule = Rule::weighted(q, w.clone()).unwrap();
             let exact = analyze_with::<_, Count1024>(&rule, Engine::Profile).unwrap();
-            let opts = Options { engine: Some(Engine::Dense), scope: Scope::Swings, ..Options::default() };
+            let opts = Options {
+                engine: Some(Engine::Dense),
+                scope: Scope::Swings,
+                ..Options::default()
+            };
             let fast = analyze_opts::<_, Count1024>(&rule, &opts).unwrap();
             assert_eq!(fast.rule.winning, exact.rule.winning, "q = {q}");
             assert_eq!(fast.rule.losing, exact.rule.losing);
-            assert_eq!((fast.rule.proper, fast.rule.strong), (exact.rule.proper, exact.rule.strong));
+            assert_eq!(
+                (fast.rule.proper, fast.rule.strong),
+                (exact.rule.proper, exact.rule.strong)
+            );
             for i in 0..3 {
-                assert_eq!(fast.members[i].swings, exact.members[i].swings, "q = {q}, member {i}");
+                assert_eq!(
+                    fast.members[i].swings, exact.members[i].swings,
+                    "q = {q}, member {i}"
+                );
             }
         }
     }
