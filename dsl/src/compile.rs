@@ -22,7 +22,7 @@ use clout_core::{Atom, Error as CoreError, Node, Rule};
 use crate::diagnostic::{closest, Diagnostic, Span};
 use crate::syntax::{
     self, AmountValue, BlocDecl, Comparison, Declaration, Expr, Game, GroupDecl, MemberDecl, NamedExpr,
-    Subject, Threshold,
+    Threshold,
 };
 
 /// A compiled rule file: the members, their weights, and every rule.
@@ -208,9 +208,13 @@ pub fn compile(source: &str) -> Result<RuleFile, Vec<Diagnostic>> {
     }
 }
 
-/// Collapses white space so that conditions print on one line.
+/// Drops comments and collapses white space, so that conditions print on one line.
 fn one_line(text: &str) -> String {
-    text.split_whitespace().collect::<Vec<_>>().join(" ")
+    text.lines()
+        .map(|l| l.split('#').next().unwrap_or(""))
+        .flat_map(str::split_whitespace)
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 fn compile_game(source: &str, g: &Game) -> Result<RuleFile, Vec<Diagnostic>> {
@@ -238,7 +242,13 @@ fn compile_game(source: &str, g: &Game) -> Result<RuleFile, Vec<Diagnostic>> {
     };
     let (q, q_span) = g.quota;
     let text = format!("weight >= {q}");
-    check_quota(q_span, &text, q, total, "weight")?;
+    let subject = Subject {
+        name: "weight",
+        total,
+        against: false,
+        bloc: false,
+    };
+    check_quota(q_span, &text, q, &subject)?;
     let rule = Rule::weighted(q, weights.clone()).map_err(|e| vec![rule_error(g.span, "game", e)])?;
     let members = (1..=weights.len())
         .map(|i| Member {
@@ -274,27 +284,51 @@ fn too_many_members(span: Span) -> Diagnostic {
     ))
 }
 
+/// What a condition sums, for messages: `seats`, `count` or a bloc.
+struct Subject<'n> {
+    /// As written in the file.
+    name: &'n str,
+    /// The total over all members.
+    total: u64,
+    /// The sum is over the no-voters (`against`).
+    against: bool,
+    /// A bloc or group: the total is its head count.
+    bloc: bool,
+}
+
 /// The quota must be reachable by the grand coalition and not met by the empty one.
-fn check_quota(span: Span, text: &str, q: u64, total: u64, subject: &str) -> Result<(), Vec<Diagnostic>> {
-    if q == 0 {
-        return Err(vec![Diagnostic::error(
-            span,
-            format!("`{text}` is met even when nobody votes yes"),
+fn check_quota(span: Span, text: &str, q: u64, s: &Subject<'_>) -> Result<(), Vec<Diagnostic>> {
+    let (name, total) = (s.name, s.total);
+    let of = if s.bloc {
+        format!("the {total} members of `{name}`")
+    } else if name == "count" {
+        format!("{total} members in all")
+    } else {
+        format!("a total of {total} `{name}`")
+    };
+    let (message, hint) = if q == 0 {
+        let hint = if s.against {
+            format!(
+                "with {of}, that many votes against can never happen; lower the amount to at most {total}"
+            )
+        } else {
+            format!("a condition every coalition meets does nothing; raise the amount ({of})")
+        };
+        (format!("`{text}` is met even when nobody votes yes"), hint)
+    } else if q > total {
+        let hint = if s.against {
+            "no votes against at all is written `< 1`; a smaller amount cannot be met".to_string()
+        } else {
+            format!("lower the amount to at most {total}, or write a share such as `{name} >= 2/3`")
+        };
+        (
+            format!("no coalition can meet `{text}`: it needs {q} of {of}"),
+            hint,
         )
-        .with_hint(format!(
-            "a condition every coalition meets does nothing; raise the amount (the total of {subject} is {total})"
-        ))]);
-    }
-    if q > total {
-        return Err(vec![Diagnostic::error(
-            span,
-            format!("no coalition can meet `{text}`: it needs {q} of {subject}, whose total is {total}"),
-        )
-        .with_hint(format!(
-            "lower the amount to at most {total}, or write a share such as `{subject} >= 2/3`"
-        ))]);
-    }
-    Ok(())
+    } else {
+        return Ok(());
+    };
+    Err(vec![Diagnostic::error(span, message).with_hint(hint)])
 }
 
 fn rule_error(span: Span, name: &str, e: CoreError) -> Diagnostic {
@@ -394,8 +428,12 @@ impl<'a> Compiler<'a> {
             self.declare(d);
         }
         self.check_attribute_names();
-        let end = Span::new(self.source.len(), self.source.len());
-        if self.members.is_empty() {
+        let last = syntax::end_of_content(self.source, self.source.len());
+        let end = Span::new(last, last);
+        let any_member = declarations
+            .iter()
+            .any(|d| matches!(d, Declaration::Member(_) | Declaration::Group(_)));
+        if !any_member {
             self.errors.push(
                 Diagnostic::error(end, "the file declares no members")
                     .with_hint("declare members with `member NAME attr=N` or `members NAME xK attr=N`"),
@@ -873,8 +911,13 @@ impl<'a> Compiler<'a> {
             } => quota::at_least_share(numerator, denominator, size).ok()?,
         };
         let text = self.text(span);
-        let subject = format!("the {size} members of `{}`", bloc.text);
-        if let Err(mut e) = check_quota(span, &text, quota, size, &subject) {
+        let subject = Subject {
+            name: &bloc.text,
+            total: size,
+            against: false,
+            bloc: true,
+        };
+        if let Err(mut e) = check_quota(span, &text, quota, &subject) {
             self.errors.append(&mut e);
             return None;
         }
@@ -886,15 +929,11 @@ impl<'a> Compiler<'a> {
     }
 
     fn threshold(&mut self, t: &Threshold) -> Option<Resolved> {
-        let (key, total, subject) = match &t.subject {
-            Subject::Count(_) => (Key::Count, self.members.len() as u64, "count".to_string()),
-            Subject::Name(name) => match self.names.get(&name.text).map(|x| x.0) {
-                Some(Kind::Attribute(a)) => (Key::Declared(a), self.totals[a]?, format!("`{}`", name.text)),
-                Some(Kind::Bloc(b)) => (
-                    Key::Bloc(b),
-                    self.blocs[b].members.len() as u64,
-                    format!("`{}`", name.text),
-                ),
+        let (key, total) = match &t.subject {
+            syntax::Subject::Count(_) => (Key::Count, self.members.len() as u64),
+            syntax::Subject::Name(name) => match self.names.get(&name.text).map(|x| x.0) {
+                Some(Kind::Attribute(a)) => (Key::Declared(a), self.totals[a]?),
+                Some(Kind::Bloc(b)) => (Key::Bloc(b), self.blocs[b].members.len() as u64),
                 Some(Kind::Member(_)) => {
                     self.errors.push(
                         Diagnostic::error(
@@ -963,17 +1002,13 @@ impl<'a> Compiler<'a> {
                 return None;
             }
         };
-        if let Err(mut e) = check_quota(t.span, &text, quota, total, &subject) {
-            if t.against.is_some() {
-                for d in &mut e {
-                    d.hint = Some(if quota == 0 {
-                        format!("{subject} totals {total}, so fewer than that many against always holds; lower the amount")
-                    } else {
-                        "nobody can pass with no votes against allowed; write at least `< 1` (no one against)"
-                            .to_string()
-                    });
-                }
-            }
+        let subject = Subject {
+            name: t.subject.span().text(self.source),
+            total,
+            against: t.against.is_some(),
+            bloc: matches!(key, Key::Bloc(_)),
+        };
+        if let Err(mut e) = check_quota(t.span, &text, quota, &subject) {
             self.errors.append(&mut e);
             return None;
         }
@@ -995,10 +1030,17 @@ impl<'a> Compiler<'a> {
             (Comparison::LessThan, true) => return Some(quota::Comparison::LessThan),
             (Comparison::AtLeast, false) => return Some(quota::Comparison::AtLeast),
             (Comparison::MoreThan, false) => return Some(quota::Comparison::MoreThan),
-            (Comparison::AtLeast | Comparison::MoreThan, true) => refuse(
-                format!("`{text}` is not monotone: more votes against would help the motion pass"),
-                format!("write what passage requires, such as `{subject} against < {amount}` (fewer than {amount} against)"),
-            ),
+            (Comparison::AtLeast | Comparison::MoreThan, true) => {
+                let (op, unless) = if cmp == Comparison::AtLeast {
+                    ("<", format!("{amount} or more"))
+                } else {
+                    ("<=", format!("more than {amount}"))
+                };
+                refuse(
+                    format!("`{text}` is not monotone: more votes against would help the motion pass"),
+                    format!("write what passage requires: `{subject} against {op} {amount}` passes unless {unless} vote no"),
+                )
+            }
             (Comparison::AtMost | Comparison::LessThan, false) => refuse(
                 format!("`{text}` is not monotone: an extra yes vote could defeat the motion"),
                 format!(

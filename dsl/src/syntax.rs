@@ -15,7 +15,7 @@
 use pest::iterators::Pair;
 use pest::Parser as _;
 
-use crate::diagnostic::{Diagnostic, Span};
+use crate::diagnostic::{closest, Diagnostic, Span};
 
 mod grammar {
     #[derive(pest_derive::Parser)]
@@ -156,7 +156,8 @@ pub enum Expr {
     All(Vec<Expr>, Span),
     /// Some operand holds (`or`).
     Any(Vec<Expr>, Span),
-    /// `not EXPR` (parsed so that the compiler can explain why it is refused).
+    /// `not EXPR` (parsed so that the compiler can explain why it is refused);
+    /// the span is the keyword's.
     Not(Box<Expr>, Span),
     /// `SUBJECT [against] CMP AMOUNT`.
     Threshold(Threshold),
@@ -370,6 +371,7 @@ impl Builder {
             .map(|p| (self.integer(&p), span_of(&p)))
             .unwrap_or_default();
         let weights = inner
+            .filter(|p| p.as_rule() == G::game_weight)
             .map(|p| {
                 let span = span_of(&p);
                 let mut parts = p.into_inner();
@@ -461,7 +463,7 @@ impl Builder {
                 let any = pair.as_rule() == G::any_of;
                 let mut operands: Vec<Expr> = pair
                     .into_inner()
-                    .filter(|p| !matches!(p.as_rule(), G::kw_and | G::kw_or))
+                    .filter(|p| !matches!(p.as_rule(), G::kw_and | G::kw_or | G::close))
                     .map(|p| self.expr(p))
                     .collect();
                 if operands.len() == 1 {
@@ -473,12 +475,13 @@ impl Builder {
                 }
             }
             G::negation => {
-                let operand = pair
-                    .into_inner()
-                    .nth(1)
+                let mut inner = pair.into_inner();
+                let keyword = inner.next().map_or(span, |k| span_of(&k));
+                let operand = inner
+                    .next()
                     .map(|p| self.expr(p))
                     .unwrap_or(Expr::All(Vec::new(), span));
-                Expr::Not(Box::new(operand), span)
+                Expr::Not(Box::new(operand), keyword)
             }
             G::k_of => {
                 let mut inner = pair.into_inner();
@@ -673,30 +676,76 @@ fn syntax_error(source: &str, e: &pest::error::Error<G>) -> Diagnostic {
         pest::error::InputLocation::Span((s, _)) => s,
     };
     let found = token_at(source, at);
+    // At the end of the file, point just after the last thing written.
+    let at = if found.is_empty() {
+        end_of_content(source, at)
+    } else {
+        at
+    };
     let span = Span::new(at, at + found.len().max(1));
-    let (message, hint) = match &e.variant {
-        pest::error::ErrorVariant::ParsingError { positives, .. } => {
-            let mut expected: Vec<&str> = positives.iter().filter_map(|r| describe(*r)).collect();
-            expected.dedup();
-            let found = if found.is_empty() {
-                "the end of the file".to_string()
-            } else {
-                format!("`{found}`")
-            };
-            let message = match expected.as_slice() {
-                [] => format!("unexpected {found}"),
-                [one] => format!("expected {one}, found {found}"),
-                [init @ .., last] => format!("expected {} or {last}, found {found}", init.join(", ")),
-            };
-            (message, positives.iter().find_map(|r| hint_for(*r)))
+    let positives: Vec<G> = match &e.variant {
+        pest::error::ErrorVariant::ParsingError { positives, .. } => positives.clone(),
+        pest::error::ErrorVariant::CustomError { .. } => Vec::new(),
+    };
+    let mut expected: Vec<&str> = Vec::new();
+    for d in positives.iter().filter_map(|r| describe(*r)) {
+        if !expected.contains(&d) {
+            expected.push(d);
         }
-        pest::error::ErrorVariant::CustomError { message } => (message.clone(), None),
+    }
+    if expected.len() > 1 {
+        expected.retain(|d| *d != "the end of the file");
+    }
+    let condition = expected.contains(&"a name") && expected.contains(&"an amount");
+    if condition {
+        expected.retain(|d| *d != "a name" && *d != "an amount");
+        expected.insert(0, "a condition");
+    }
+    let shown = if found.is_empty() {
+        "the end of the file".to_string()
+    } else {
+        format!("`{found}`")
+    };
+    let message = match expected.as_slice() {
+        [] => format!("unexpected {shown}"),
+        [one] => format!("expected {one}, found {shown}"),
+        [init @ .., last] => format!("expected {} or {last}, found {shown}", init.join(", ")),
+    };
+    let is_word = found.len() > 2 && found.chars().all(|c| c.is_ascii_alphabetic());
+    let typo = closest(found, KEYWORDS).filter(|k| *k != found && is_word);
+    let hint = match typo {
+        Some(k) => Some(format!("did you mean `{k}`?")),
+        None => positives
+            .iter()
+            .chain(condition.then_some(&G::condition))
+            .filter_map(|r| hint_for(*r))
+            .min_by_key(|(rank, _)| *rank)
+            .map(|(_, h)| h.to_string()),
     };
     let d = Diagnostic::error(span, message);
     match hint {
         Some(h) => d.with_hint(h),
         None => d,
     }
+}
+
+const KEYWORDS: [&str; 12] = [
+    "title", "member", "members", "bloc", "define", "rule", "count", "against", "of", "and", "or", "not",
+];
+
+/// The end of the last token before `at` (skipping white space and comments).
+pub(crate) fn end_of_content(source: &str, at: usize) -> usize {
+    let before = &source[..at.min(source.len())];
+    let mut end = 0;
+    for line in before.split_inclusive('\n') {
+        let code = line.split('#').next().unwrap_or("");
+        let trimmed = code.trim_end();
+        let start = line.as_ptr() as usize - before.as_ptr() as usize;
+        if !trimmed.is_empty() {
+            end = start + trimmed.len();
+        }
+    }
+    end
 }
 
 /// The token starting at byte `at`: a word, a number, or one symbol.
@@ -725,11 +774,16 @@ fn describe(kind: G) -> Option<&'static str> {
             "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)"
         }
         G::game => "`[`",
+        G::close => "`)`",
+        G::comma => "`,`",
+        G::semicolon => "`;`",
+        G::game_end => "`]`",
         G::name | G::reference | G::subject => "a name",
         G::weight => "a weight such as `seats=3`",
         G::repeat => "a repeat count such as `x12`",
         G::expr | G::any_of | G::all_of | G::condition | G::k_of | G::negation | G::primary => "a condition",
-        G::kw_and | G::kw_or => "`and` or `or`",
+        G::kw_and => "`and`",
+        G::kw_or => "`or`",
         G::kw_of => "`of`",
         G::against | G::kw_against => "`against`",
         G::comparison => "a comparison (`>=` or `>`)",
@@ -741,25 +795,30 @@ fn describe(kind: G) -> Option<&'static str> {
     })
 }
 
-fn hint_for(kind: G) -> Option<&'static str> {
+/// A hint for an expected rule, with a rank: the lowest rank among the
+/// expected rules wins.
+fn hint_for(kind: G) -> Option<(u8, &'static str)> {
+    let declaration =
+        "every declaration starts with one of the keywords `title`, `member`, `members`, `bloc`, `define`, `rule`";
     Some(match kind {
-        G::declaration | G::title | G::member | G::group | G::bloc | G::define | G::rule => {
-            "every declaration starts with one of the keywords `title`, `member`, `members`, `bloc`, `define`, `rule`"
+        G::game_end | G::comma | G::semicolon => {
+            (0, "the notation is `[q; w1, w2, ...]`, with `w xK` for K members of weight w")
         }
-        G::kw_title | G::kw_member | G::kw_members | G::kw_bloc | G::kw_define | G::kw_rule => {
-            "every declaration starts with one of the keywords `title`, `member`, `members`, `bloc`, `define`, `rule`"
-        }
-        G::comparison => "a condition reads `ATTRIBUTE >= AMOUNT`, e.g. `seats > 1/2` or `count against < 3`",
+        G::close => (1, "every `(` needs its `)`"),
+        G::declaration | G::title | G::member | G::group | G::bloc | G::define | G::rule => (2, declaration),
+        G::kw_title | G::kw_member | G::kw_members | G::kw_bloc | G::kw_define | G::kw_rule => (2, declaration),
+        G::expr | G::any_of | G::all_of | G::condition | G::k_of | G::reference => (
+            3,
+            "a condition is `ATTRIBUTE >= AMOUNT`, `K of BLOC`, a member or bloc name, or conditions joined by `and` / `or`",
+        ),
+        G::comparison => (4, "a condition reads `ATTRIBUTE >= AMOUNT`, e.g. `seats > 1/2` or `count against < 3`"),
         G::amount | G::integer | G::percent | G::fraction => {
-            "an amount is a whole number (`12`), a percentage (`62.5%`) or a fraction (`2/3`)"
+            (5, "an amount is a whole number (`12`), a percentage (`62.5%`) or a fraction (`2/3`)")
         }
-        G::repeat => "`members NAME xK` declares K identical members NAME1 .. NAMEK",
-        G::weight => "weights are written `attribute=number`, e.g. `seats=9`",
-        G::expr | G::any_of | G::all_of | G::condition | G::k_of | G::primary => {
-            "a condition is `ATTRIBUTE >= AMOUNT`, `K of BLOC`, a member or bloc name, or conditions joined by `and` / `or`"
-        }
-        G::name => "names start with a letter or `_`; keywords such as `count`, `of` and `rule` cannot be names",
-        G::string => "write the title in double quotes on one line",
+        G::repeat => (6, "`members NAME xK` declares K identical members NAME1 .. NAMEK"),
+        G::weight => (7, "weights are written `attribute=number`, e.g. `seats=9`"),
+        G::name => (8, "names start with a letter or `_`; keywords such as `count`, `of` and `rule` cannot be names"),
+        G::string => (9, "write the title in double quotes on one line"),
         _ => return None,
     })
 }

@@ -27,6 +27,13 @@ impl Input {
     /// Loads and compiles; `None` for both means the demo when `demo_allowed`.
     pub fn load(file: Option<&Path>, game: Option<&str>, demo_allowed: bool) -> Result<Input, Failure> {
         match (file, game) {
+            (Some(path), _) if path.as_os_str() == "-" => {
+                let mut source = String::new();
+                std::io::Read::read_to_string(&mut std::io::stdin(), &mut source).map_err(|e| {
+                    Failure::input(format!("cannot read standard input: {}", describe_io(&e)))
+                })?;
+                Input::compile("<stdin>".to_string(), source, false)
+            }
             (Some(path), _) => {
                 let source = std::fs::read_to_string(path).map_err(|e| {
                     Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e)))

@@ -48,7 +48,7 @@ enum Command {
 
 #[derive(Args)]
 struct Source {
-    /// Rule file (`.clout`), or a file holding `[q; w1, ..., wn]`.
+    /// Rule file (`.clout`), a file holding `[q; w1, ..., wn]`, or `-` for standard input.
     file: Option<PathBuf>,
     /// The weighted game `[q; w1, ..., wn]` instead of a file (members p1..pn).
     #[arg(long, value_name = "[q; w...]", conflicts_with = "file")]
@@ -90,7 +90,7 @@ struct DecideArgs {
 
 #[derive(Args)]
 struct CheckArgs {
-    /// Rule files.
+    /// Rule files (`-` for standard input).
     files: Vec<PathBuf>,
     /// Check the weighted game `[q; w1, ..., wn]` instead of a file.
     #[arg(long, value_name = "[q; w...]")]

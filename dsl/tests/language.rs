@@ -1,0 +1,459 @@
+//! The rule language end to end: exact quotas, names, definitions, the
+//! `[q; w...]` notation, a table of bad inputs with their positions and
+//! messages, warnings, published check values, and the print/compile round
+//! trip on random rules.
+
+mod support;
+
+use clout_core::{Atom, Node};
+use clout_dsl::{compile, exact, lint, print_rule, AttributeKind, RuleFile, Severity};
+use proptest::prelude::*;
+use support::rules;
+
+const TRANSIT: &str = include_str!("../../examples/transit.clout");
+const TWO_CHAMBER: &str = include_str!("../../examples/two-chamber.clout");
+
+fn ok(source: &str) -> RuleFile {
+    match compile(source) {
+        Ok(f) => f,
+        Err(e) => panic!("{}", clout_dsl::render_all(&e, "test", source)),
+    }
+}
+
+fn quotas(file: &RuleFile, rule: &str) -> Vec<(String, u64)> {
+    let r = file.rule(Some(rule)).unwrap();
+    r.rule
+        .atoms()
+        .iter()
+        .map(|a| (r.attributes[usize::from(a.attribute)].name.clone(), a.quota))
+        .collect()
+}
+
+#[test]
+fn transit_quotas_are_exact_integers() {
+    let f = ok(TRANSIT);
+    assert_eq!(f.members.len(), 15);
+    assert_eq!(f.members[3].name, "delegate1");
+    assert_eq!(f.members[14].name, "delegate12");
+    assert_eq!(f.attributes, ["seats", "riders"]);
+    // seats total 9 + 7 + 1 + 12 = 29; riders 712,000.
+    // 2/3 of 29 = 19.33.. -> 20; 60% of 29 = 17.4 -> 18; 65% of 712,000 = 462,800 exactly;
+    // fewer than 2 of 15 against -> at least 14 yes; more than half of 29 -> 15;
+    // more than 50% of 712,000 -> 356,001.
+    let s = |a: &str, q: u64| (a.to_string(), q);
+    assert_eq!(quotas(&f, "budget"), [s("seats", 20), s("count", 3)]);
+    assert_eq!(
+        quotas(&f, "charter"),
+        [s("seats", 18), s("riders", 462_800), s("count", 14)]
+    );
+    assert_eq!(quotas(&f, "closure"), [s("seats", 15), s("founders", 2)]);
+    assert_eq!(quotas(&f, "quick"), [s("founders", 2), s("riders", 356_001)]);
+    let charter = f.rule(Some("charter")).unwrap();
+    assert_eq!(
+        charter.rule.formula(),
+        [
+            Node::Atom(0),
+            Node::Atom(1),
+            Node::All(2),
+            Node::Atom(2),
+            Node::Any(2)
+        ]
+    );
+    assert_eq!(charter.attributes[2].kind, AttributeKind::Count);
+    assert_eq!(charter.conditions[2].text, "count against < 2");
+    assert_eq!(f.rule(None).unwrap().name, "budget");
+}
+
+#[test]
+fn percentages_fractions_and_blocs() {
+    let f = ok(
+        "member a w=3\nmember b w=5\nmembers c x6 w=0\nbloc ab = a, b\nbloc big = ab, c2\n\
+         rule p = w >= 62.5% and 2/3 of big\nrule q = ab >= 1/2 and big against <= 1 and c",
+    );
+    // 62.5% of 8 = 5 exactly; 2/3 of 3 members = 2; 1/2 of 2 = 1; at most 1 of 3 against -> 2.
+    assert_eq!(quotas(&f, "p"), [("w".into(), 5), ("big".into(), 2)]);
+    assert_eq!(
+        quotas(&f, "q"),
+        [("ab".into(), 1), ("big".into(), 2), ("c".into(), 6)]
+    );
+    let big = f.blocs.iter().find(|b| b.name == "big").unwrap();
+    assert_eq!(big.members, [0, 1, 3]);
+    let q = f.rule(Some("q")).unwrap();
+    // The group `c` is a bloc of its six members.
+    let c = q.attributes.iter().position(|a| a.name == "c").unwrap();
+    assert_eq!(q.rule.attribute_weights(c), [0, 0, 1, 1, 1, 1, 1, 1]);
+}
+
+#[test]
+fn definitions_share_their_atoms() {
+    let f = ok(
+        "member a w=2\nmember b w=1\nmember c w=1\ndefine half = w > 1/2\n\
+         rule r = half and (half or count >= 2)",
+    );
+    let r = f.rule(None).unwrap();
+    assert_eq!(
+        r.rule.atoms(),
+        [
+            Atom {
+                attribute: 0,
+                quota: 3
+            },
+            Atom {
+                attribute: 1,
+                quota: 2
+            }
+        ]
+    );
+    assert_eq!(
+        r.rule.formula(),
+        [
+            Node::Atom(0),
+            Node::Atom(0),
+            Node::Atom(1),
+            Node::Any(2),
+            Node::All(2)
+        ]
+    );
+}
+
+#[test]
+fn member_names_alone_and_ranges() {
+    let f = ok(TWO_CHAMBER);
+    assert_eq!(f.members.len(), 536);
+    let r = f.rule(None).unwrap();
+    // more than 1/2 of 435 -> 218; of 100 -> 51; 2/3 of 435 -> 290; of 100 -> 67 (66.67 rounds up).
+    assert_eq!(
+        quotas(&f, "passage"),
+        [
+            ("rep".into(), 218),
+            ("senator".into(), 51),
+            ("executive".into(), 1),
+            ("rep".into(), 290),
+            ("senator".into(), 67)
+        ]
+    );
+    assert_eq!(r.attributes.last().unwrap().kind, AttributeKind::Member);
+    assert_eq!(f.members_named("rep3..rep5"), Some(vec![2, 3, 4]));
+    assert_eq!(f.members_named("rep5..senator1"), None);
+    assert_eq!(f.members_named("senator").map(|m| m.len()), Some(100));
+    assert_eq!(
+        f.describe_members(&[0, 1, 2, 435, 535]),
+        ["rep1..rep3", "senator1", "executive"]
+    );
+}
+
+#[test]
+fn weighted_game_notation() {
+    let f = ok("# fictional\n[39; 7 x5, 1 x10]\n");
+    let r = f.rule(None).unwrap();
+    assert_eq!(r.name, "game");
+    assert_eq!(f.members.len(), 15);
+    assert_eq!(f.members[14].name, "p15");
+    assert_eq!(r.rule.single_threshold(), Some((0, 39)));
+    assert_eq!(r.rule.total(0), 45);
+    assert_eq!(ok("[2; 1, 1, 1,]").members.len(), 3);
+}
+
+/// Bad inputs: (source, line, column, message). Every message is pinned.
+const BAD: &[(&str, usize, usize, &str)] = &[
+    (
+        "member harbor seats=9\nmember mill seats=7\nbloc founders = harbour, mill\nrule r = seats > 1/2",
+        3,
+        17,
+        "unknown member `harbour`",
+    ),
+    ("member a seats=9\nrule r = seat > 1/2", 2, 10, "unknown attribute `seat`"),
+    ("member a seats=9\nrule r = b", 2, 10, "unknown name `b`"),
+    (
+        "member a seats=9\nmember b seats=1\nrule r = seats < 10",
+        3,
+        16,
+        "`seats < 10` is not monotone: an extra yes vote could defeat the motion",
+    ),
+    (
+        "member a seats=9\nrule r = seats <= 3",
+        2,
+        16,
+        "`seats <= 3` is not monotone: an extra yes vote could defeat the motion",
+    ),
+    (
+        "member a seats=9\nrule r = seats = 9",
+        2,
+        16,
+        "`seats = 9` is not monotone: an exact amount can be overshot by an extra yes vote",
+    ),
+    (
+        "member a seats=9\nrule r = count against > 1",
+        2,
+        24,
+        "`count against > 1` is not monotone: more votes against would help the motion pass",
+    ),
+    ("member a seats=9\nrule r = not a", 2, 10, "`not` makes the rule non-monotone"),
+    ("member a seats=9\nrule r = seats >= 120%", 2, 19, "the percentage 120% is above 100%"),
+    ("member a seats=9\nrule r = seats >= 3/2", 2, 19, "the share 3/2 is more than the whole"),
+    ("member a seats=9\nrule r = seats >= 1/0", 2, 19, "the fraction 1/0 has a zero denominator"),
+    (
+        "member a seats=9\nrule r = seats >= 62.5",
+        2,
+        19,
+        "`62.5` is a decimal without a percent sign",
+    ),
+    (
+        "member a seats=9\nrule r = seats >= 99999999999999999999",
+        2,
+        19,
+        "the number 99999999999999999999 is too large",
+    ),
+    ("member a seats=9\nmember a seats=1\nrule r = a", 2, 8, "duplicate name `a`"),
+    (
+        "members d x3 seats=1\nmember d2\nrule r = count > 1/2",
+        2,
+        8,
+        "duplicate name `d2`",
+    ),
+    ("member seats seats=1\nrule r = seats >= 1", 1, 14, "duplicate name `seats`"),
+    (
+        "member a seats=9\nmember b seats=1\nrule r = seats >= 11",
+        3,
+        10,
+        "no coalition can meet `seats >= 11`: it needs 11 of a total of 10 `seats`",
+    ),
+    (
+        "member a seats=9\nrule r = seats > 100%",
+        2,
+        10,
+        "no coalition can meet `seats > 100%`: it needs 10 of a total of 9 `seats`",
+    ),
+    (
+        "member a seats=9\nrule r = seats >= 0",
+        2,
+        10,
+        "`seats >= 0` is met even when nobody votes yes",
+    ),
+    (
+        "member a seats=9\nmember b seats=3\nrule r = count against < 5",
+        3,
+        10,
+        "`count against < 5` is met even when nobody votes yes",
+    ),
+    (
+        "member a\nbloc b = a\nrule r = 3 of b",
+        3,
+        10,
+        "no coalition can meet `3 of b`: it needs 3 of the 1 members of `b`",
+    ),
+    ("member a\nrule r = 2 of a", 2, 15, "`a` is a member; `K of` needs a bloc or group"),
+    ("member a seats=2\nrule r = seats", 2, 10, "`seats` is an attribute; compare it with an amount"),
+    ("member a seats=9 seats=2\nrule r = a", 1, 18, "`seats` is given twice"),
+    ("members d x0 seats=1\nrule r = count > 1/2", 1, 11, "a group of zero members"),
+    (
+        "member a\ndefine x = y\ndefine y = x\nrule r = x",
+        2,
+        8,
+        "`x` refers to itself (x -> y -> x)",
+    ),
+    ("member a\nbloc b = a, a\nrule r = b", 2, 13, "`a` is listed twice in bloc `b`"),
+    ("member a seats=9\nrule r = seats => 1", 2, 16, "`=>` is not a comparison of the language"),
+    ("member a\nrule r = a\ntitle \"x\"\ntitle \"y\"", 4, 1, "a second title"),
+    ("member a seats=9 # no rule\n\n", 1, 17, "the file declares no rule"),
+    ("rule r = count > 1/2\n", 1, 21, "the file declares no members"),
+    (
+        "member a seats=9\nrule r = seats >=\n",
+        2,
+        18,
+        "expected an amount, found the end of the file",
+    ),
+    (
+        "member a seats=9\nrule r = seats >= 1 and\n",
+        2,
+        24,
+        "expected a condition, found the end of the file",
+    ),
+    (
+        "member a seats=9\nrule r = (seats >= 1 and a",
+        2,
+        27,
+        "expected `)`, a comparison (`>=` or `>`), `against`, `and` or `or`, found the end of the file",
+    ),
+    (
+        "member a seats=9\nmembrer b seats=1\nrule r = a",
+        2,
+        1,
+        "expected a weight such as `seats=3` or a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`), found `membrer`",
+    ),
+    ("member count", 1, 8, "expected a name, found `count`"),
+    (
+        "[2; 1,2,3",
+        1,
+        10,
+        "expected a repeat count such as `x12`, `,` or `]`, found the end of the file",
+    ),
+    ("[0; 1,2,3]", 1, 2, "`weight >= 0` is met even when nobody votes yes"),
+    (
+        "[7; 1,2,3]",
+        1,
+        2,
+        "no coalition can meet `weight >= 7`: it needs 7 of a total of 6 `weight`",
+    ),
+    ("[2; 1 x0]", 1, 5, "a weight repeated zero times"),
+    ("members m x70000\nrule r = m", 1, 11, "more than 65535 members"),
+];
+
+#[test]
+fn bad_inputs_point_at_their_cause() {
+    let mut failures = Vec::new();
+    for &(source, line, col, message) in BAD {
+        match compile(source) {
+            Ok(_) => failures.push(format!("{source:?}: compiled")),
+            Err(errors) => {
+                let first = &errors[0];
+                let got = (first.line_col(source), first.message.as_str());
+                if got != ((line, col), message) {
+                    failures.push(format!(
+                        "{source:?}: got {got:?}, want {:?}",
+                        ((line, col), message)
+                    ));
+                }
+                if first.hint.is_none() {
+                    failures.push(format!("{source:?}: no hint"));
+                }
+                assert!(errors.iter().all(|e| e.severity == Severity::Error));
+            }
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn every_error_of_a_file_is_reported() {
+    let source = "member a seats=9\nrule r = seats >= 200 and c\nrule s = seets > 1/2\nrule t = seats < 3";
+    let errors = compile(source).unwrap_err();
+    let at: Vec<(usize, usize)> = errors.iter().map(|e| e.line_col(source)).collect();
+    assert_eq!(at, [(2, 10), (2, 27), (3, 10), (4, 16)]);
+}
+
+#[test]
+fn rendered_errors_show_the_line_a_caret_and_a_hint() {
+    let source = "member harbor seats=9\nmember mill seats=7\nrule r = seats > 1/2 and harbour\n";
+    let errors = compile(source).unwrap_err();
+    assert_eq!(
+        clout_dsl::render_all(&errors, "board.clout", source),
+        "board.clout:3:26: error: unknown name `harbour`\n\
+         \x20  3 | rule r = seats > 1/2 and harbour\n\
+         \x20    |                          ^^^^^^^\n\
+         \x20    = hint: did you mean `harbor`?\n"
+    );
+}
+
+#[test]
+fn lint_warns_about_dummies_and_improper_rules() {
+    let f = ok(TRANSIT);
+    let warnings = lint(&f, u128::MAX);
+    let messages: Vec<&str> = warnings.iter().map(|d| d.message.as_str()).collect();
+    assert_eq!(
+        messages,
+        [
+            "under rule `closure`, `ferry` and `delegate1..delegate12` are dummies: their vote never changes the outcome",
+            "under rule `quick`, `ferry` and `delegate1..delegate12` are dummies: their vote never changes the outcome",
+        ]
+    );
+    // [2; 1, 1, 1, 1]: {p1, p2} and {p3, p4} both pass.
+    let g = ok("[2; 1 x4]");
+    let w = lint(&g, u128::MAX);
+    assert_eq!(w.len(), 1);
+    assert_eq!(
+        w[0].message,
+        "rule `game` is not proper: two disjoint coalitions can both pass"
+    );
+    assert!(
+        w[0].hint
+            .as_deref()
+            .unwrap()
+            .starts_with("for example {p1, p2} and {p3, p4} both pass"),
+        "{:?}",
+        w[0].hint
+    );
+    // A budget too small for any engine gives a note, not a warning.
+    let n = lint(&g, 1);
+    assert_eq!(n[0].severity, Severity::Note);
+}
+
+fn exact_of(source: &str) -> exact::Power {
+    let f = ok(source);
+    let r = &f.rule(None).unwrap().rule;
+    let plan = exact::choose(r, u128::MAX).unwrap();
+    exact::power(r, plan.engine).unwrap()
+}
+
+#[test]
+fn published_weighted_games_through_the_language() {
+    // [12; 4, 4, 4, 2, 2, 1]: swings 10, 10, 10, 6, 6, 0; Shapley-Shubik 7/30 (x3), 3/20 (x2), 0.
+    // Felsenthal & Machover 1998, The Measurement of Voting Power (the 1958 EEC Council).
+    for source in [
+        "[12; 4, 4, 4, 2, 2, 1]",
+        "member fr w=4\nmember de w=4\nmember it w=4\nmember be w=2\nmember nl w=2\nmember lu w=1\nrule r = w >= 12",
+    ] {
+        let p = exact_of(source);
+        let swings: Vec<&str> = p.members.iter().map(|m| m.swings.as_str()).collect();
+        assert_eq!(swings, ["10", "10", "10", "6", "6", "0"]);
+        let ss: Vec<f64> = p.members.iter().map(|m| m.shapley_shubik).collect();
+        for (got, want) in ss.iter().zip([7.0 / 30.0, 7.0 / 30.0, 7.0 / 30.0, 0.15, 0.15, 0.0]) {
+            assert!((got - want).abs() < 1e-12, "{ss:?}");
+        }
+        assert!(p.members[5].dummy);
+    }
+    // [39; 7 x5, 1 x10]: swings 848 and 84; Shapley-Shubik 421/2145 and 4/2145.
+    // Felsenthal & Machover 1998; Taylor & Zwicker 1999, Simple Games (the UN Security Council).
+    let p = exact_of("[39; 7 x5, 1 x10]");
+    assert_eq!(p.members[0].swings, "848");
+    assert_eq!(p.members[5].swings, "84");
+    let (num, den) = p.members[0].shapley_shubik_exact.clone().unwrap();
+    let (num, den): (u128, u128) = (num.parse().unwrap(), den.parse().unwrap());
+    assert_eq!(num * 2145, 421 * den);
+    let (num, den) = p.members[14].shapley_shubik_exact.clone().unwrap();
+    let (num, den): (u128, u128) = (num.parse().unwrap(), den.parse().unwrap());
+    assert_eq!(num * 2145, 4 * den);
+    assert!(p.members[0].veto && !p.members[5].veto);
+}
+
+#[test]
+fn published_two_chamber_rule_through_the_language() {
+    // 435 + 100 equal members and an executive: passage by more than half of both
+    // chambers and the executive, or two thirds of both. Executive: normalized
+    // Banzhaf 0.0380, Shapley-Shubik 0.1605 to 3 significant figures
+    // (Taylor 1995, Mathematics and Politics; from memory).
+    let p = exact_of(TWO_CHAMBER);
+    let executive = &p.members[535];
+    assert!(
+        (executive.banzhaf - 0.0380).abs() < 0.00005,
+        "{}",
+        executive.banzhaf
+    );
+    assert!(
+        (executive.shapley_shubik - 0.1605).abs() < 0.00005,
+        "{}",
+        executive.shapley_shubik
+    );
+    assert!(!executive.veto && !executive.dummy);
+    assert!(p.proper && !p.strong);
+}
+
+proptest! {
+    #[test]
+    fn printed_rules_compile_to_the_same_rule(rule in rules()) {
+        let text = print_rule(&rule);
+        let file = match compile(&text) {
+            Ok(f) => f,
+            Err(e) => return Err(TestCaseError::fail(clout_dsl::render_all(&e, "printed", &text))),
+        };
+        prop_assert_eq!(&file.rules[0].rule, &rule, "{}", text);
+    }
+
+    #[test]
+    fn compiled_rules_print_back_to_themselves(rule in rules()) {
+        // compile . print is the identity on compiled rules, so printing is stable.
+        let once = print_rule(&rule);
+        let again = print_rule(&compile(&once).unwrap().rules[0].rule);
+        prop_assert_eq!(once, again);
+    }
+}
