@@ -78,10 +78,10 @@ struct DecideArgs {
     #[command(flatten)]
     source: Source,
     /// Members voting yes: names, groups, blocs, ranges such as `rep1..rep218`, or `all`.
-    #[arg(long, value_name = "NAMES", value_delimiter = ',', num_args = 0..)]
+    #[arg(long, value_name = "NAMES", value_delimiter = ',')]
     yes: Vec<String>,
     /// Members taken out of the yes list (same forms), e.g. `--yes all --no harbor`.
-    #[arg(long, value_name = "NAMES", value_delimiter = ',', num_args = 0..)]
+    #[arg(long, value_name = "NAMES", value_delimiter = ',')]
     no: Vec<String>,
     /// Output format.
     #[arg(long, value_enum, default_value_t = DecideFormat::Text)]
