@@ -189,30 +189,37 @@ fn pass(shape: &Shape<'_>, p: u32) -> Pass {
         range_sum(&f, shape.proper, p),
         range_sum(&f, shape.strong, p),
     ];
-    // Divide out one member of each type: g[s] = f[s] - g[s - w] on losing sums.
-    let g = &mut next;
+    // Divide out one member of each type without building the quotient:
+    // with g = f / (1 + x^w), g[s] = Σ_j (-1)^j f[s - j w] on losing sums, so
+    // the swing window Σ_{s in [L - w, L)} g[s] telescopes over prefix sums
+    // P(x) = f[0] + ... + f[x] into A_0 - 2 A_1 + 2 A_2 - ..., A_j = P(L - 1 - j w):
+    // O(L / w) per type instead of O(L), O(L log L) over distinct weights
+    // (the harmonic-sum observation of Kakimura & Terai 2025).
+    let prefix = &mut next;
+    let mut acc = 0u32;
+    for (d, &x) in prefix[..lose].iter_mut().zip(&f[..lose]) {
+        acc = add32(acc, x, p);
+        *d = acc;
+    }
     for &w in shape.type_weights {
         let w = w as usize;
-        if w == 0 {
+        if w == 0 || lose == 0 {
             values.push(0);
             continue;
         }
-        g[..lose.min(w)].copy_from_slice(&f[..lose.min(w)]);
-        let mut s = w;
-        while s < lose {
-            let end = (s + w).min(lose);
-            let (done, rest) = g.split_at_mut(s);
-            for ((d, &a), &b) in rest[..end - s]
-                .iter_mut()
-                .zip(&f[s..end])
-                .zip(&done[s - w..end - w])
-            {
-                *d = sub32(a, b, p);
-            }
-            s = end;
+        let mut swing = prefix[lose - 1];
+        let mut j = 1;
+        while j * w < lose {
+            let a = prefix[lose - 1 - j * w];
+            let twice = add32(a, a, p);
+            swing = if j % 2 == 1 {
+                sub32(swing, twice, p)
+            } else {
+                add32(swing, twice, p)
+            };
+            j += 1;
         }
-        let swing = range_sum(g, (lose.saturating_sub(w), lose.saturating_sub(1)), p);
-        values.push(if lose == 0 { 0 } else { swing });
+        values.push(swing);
     }
     Pass { values }
 }
