@@ -199,3 +199,41 @@ fn engines_refuse_what_they_cannot_do() {
         Err(Error::TooCostly { .. })
     ));
 }
+
+#[test]
+fn memory_limit_steers_the_planner() {
+    use clout::planner::{plan_within, Limits};
+    // Weights 1..=24 with a majority quota: dense needs (25 x 151) counts; a
+    // limit below that sends the planner elsewhere, and a tiny limit to an error.
+    let w: Vec<u64> = (1..=24).collect();
+    let r = Rule::weighted(151, w).unwrap();
+    let roomy = Limits {
+        budget: u128::MAX,
+        memory: u64::MAX,
+        count_bytes: 16,
+    };
+    let free = plan_within(&r, engine::Scope::All, &roomy).unwrap();
+    let dense = free.memory_of(Engine::Dense).unwrap();
+    let tight = Limits {
+        memory: dense - 1,
+        ..roomy
+    };
+    let p = plan_within(&r, engine::Scope::All, &tight).unwrap();
+    assert_ne!(p.engine, Engine::Dense);
+    assert!(p.memory_of(p.engine).unwrap() < dense);
+    let tiny = Limits { memory: 16, ..roomy };
+    assert!(matches!(
+        plan_within(&r, engine::Scope::All, &tiny),
+        Err(Error::MemoryLimit { limit: 16, .. })
+    ));
+    // A forced engine over the limit is refused rather than run.
+    let opts = clout::Options {
+        engine: Some(Engine::Dense),
+        memory: 16,
+        ..clout::Options::default()
+    };
+    assert!(matches!(
+        clout::analyze_opts::<_, u128>(&r, &opts),
+        Err(Error::MemoryLimit { .. })
+    ));
+}

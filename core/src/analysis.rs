@@ -6,7 +6,7 @@ use alloc::vec::Vec;
 
 use crate::count::Counter;
 use crate::engine::{self, Engine, Scope, Workspace};
-use crate::planner::{plan_for, Plan, DEFAULT_BUDGET};
+use crate::planner::{plan_within, Limits, Plan, DEFAULT_BUDGET, DEFAULT_MEMORY};
 use crate::power::{MemberCounts, PowerTable, RuleCounts};
 use crate::{Error, Rule};
 
@@ -37,6 +37,8 @@ pub struct Options {
     pub scope: Scope,
     /// Most estimated steps the planner may choose.
     pub budget: u128,
+    /// Most bytes an engine may use (default [`DEFAULT_MEMORY`], 2 GiB).
+    pub memory: u64,
 }
 
 impl Default for Options {
@@ -45,6 +47,7 @@ impl Default for Options {
             engine: None,
             scope: Scope::All,
             budget: DEFAULT_BUDGET,
+            memory: DEFAULT_MEMORY,
         }
     }
 }
@@ -74,16 +77,35 @@ pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     options: &Options,
 ) -> Result<Analysis<C>, Error> {
+    let limits = Limits {
+        budget: options.budget,
+        memory: options.memory,
+        count_bytes: core::mem::size_of::<C>(),
+    };
     let plan = match options.engine {
-        None => plan_for(rule, options.scope, options.budget)?,
+        None => plan_within(rule, options.scope, &limits)?,
         Some(engine) => {
-            let mut p = plan_for(rule, options.scope, u128::MAX).unwrap_or(Plan {
+            let unlimited = Limits {
+                budget: u128::MAX,
+                memory: u64::MAX,
+                ..limits
+            };
+            let mut p = plan_within(rule, options.scope, &unlimited).unwrap_or(Plan {
                 engine,
                 cost: 0,
                 costs: Engine::ALL.map(|e| (e, None)),
+                memory: Engine::ALL.map(|e| (e, None)),
             });
             p.engine = engine;
             p.cost = engine::cost_for(rule, engine, options.scope)?;
+            let needed = engine::memory_for(rule, engine, options.scope, limits.count_bytes)?;
+            if needed > options.memory && engine != Engine::Diagram {
+                // The diagram's estimate is an upper bound; it checks its real size itself.
+                return Err(Error::MemoryLimit {
+                    needed,
+                    limit: options.memory,
+                });
+            }
             p
         }
     };

@@ -126,6 +126,17 @@ pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>, sizes: bool) -> Result<Need,
     })
 }
 
+/// Bytes of the residue path's word tables: two per thread, plus prefix sums.
+pub(crate) fn residue_memory<W: AsRef<[u64]>>(rule: &Rule<W>, count_bytes: usize) -> Result<u64, Error> {
+    let sp = space(rule)?;
+    if sp.dims != 1 {
+        let need = need(rule, false)?;
+        return Ok((need.counts as u64).saturating_mul(count_bytes as u64));
+    }
+    let threads = 8u64; // an upper bound on the threads that run passes at once
+    Ok(threads * 2 * (sp.caps[0] + 1) * 4 + rule.members() as u64 * 8)
+}
+
 pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, sizes: bool) -> Result<u128, Error> {
     let sp = space(rule)?;
     let n = rule.members() as u128;

@@ -573,8 +573,21 @@ pub const DEFAULT_MEMORY_LIMIT: u64 = 2 << 30;
 /// most min(2^l, 2^(n-l+1), Π_j (classes of atom j)) nodes on level l, and
 /// an atom has at most (remaining total + 2) classes.
 pub(crate) fn estimate<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
+    let n = rule.members() as u128;
+    let per = (rule.atoms().len() as u128 + 8) * 16 + n * n;
+    estimate_nodes(rule).saturating_mul(per)
+}
+
+/// Upper estimate of the bytes the engine needs with counts of `count_bytes` each.
+pub(crate) fn estimate_memory<W: AsRef<[u64]>>(rule: &Rule<W>, count_bytes: usize) -> u64 {
+    let per = (rule.members() as u128 + 1) * count_bytes as u128 * 2 + 16 + 8 * rule.atoms().len() as u128;
+    u64::try_from(estimate_nodes(rule).saturating_mul(per)).unwrap_or(u64::MAX)
+}
+
+/// Upper estimate of the number of nodes.
+fn estimate_nodes<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
     let n = rule.members();
-    let order = member_order(rule, Order::HeavyFirst);
+    let order = member_order(rule, Order::LightFirst);
     let mut rest: Vec<u128> = rule
         .atoms()
         .iter()
@@ -596,8 +609,7 @@ pub(crate) fn estimate<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
             }
         }
     }
-    let per = (rule.atoms().len() as u128 + 8) * 16 + (n as u128) * (n as u128);
-    nodes.saturating_mul(per)
+    nodes
 }
 
 /// Most nodes the engine builds by default.

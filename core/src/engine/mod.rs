@@ -157,6 +157,44 @@ fn diagram_cost<W: AsRef<[u64]>>(_: &Rule<W>) -> Result<u128, Error> {
     })
 }
 
+/// Estimated bytes `engine` needs on `rule` for `scope` with counts of
+/// `count_bytes` bytes each: its scratch (or, for the engines that allocate
+/// their own tables, an upper estimate of them) plus the result arrays.
+pub fn memory_for<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    engine: Engine,
+    scope: Scope,
+    count_bytes: usize,
+) -> Result<u64, Error> {
+    let n = rule.members() as u64;
+    let results = n * (count_bytes as u64 * 2 + 48);
+    let tables = match engine {
+        Engine::Diagram => diagram_memory(rule, count_bytes)?,
+        Engine::Dense if cfg!(feature = "alloc") && scope == Scope::Swings => {
+            dense::residue_memory(rule, count_bytes)?
+        }
+        _ => {
+            let need = need_for(rule, engine, scope)?;
+            (need.counts as u64)
+                .saturating_mul(count_bytes as u64)
+                .saturating_add(need.indices as u64 * 4)
+        }
+    };
+    Ok(tables.saturating_add(results))
+}
+
+#[cfg(feature = "alloc")]
+fn diagram_memory<W: AsRef<[u64]>>(rule: &Rule<W>, count_bytes: usize) -> Result<u64, Error> {
+    Ok(diagram::estimate_memory(rule, count_bytes))
+}
+
+#[cfg(not(feature = "alloc"))]
+fn diagram_memory<W: AsRef<[u64]>>(_: &Rule<W>, _: usize) -> Result<u64, Error> {
+    Err(Error::EngineUnsuitable {
+        engine: Engine::Diagram,
+    })
+}
+
 /// Runs `engine` on `rule`, writing one entry per member into `members`.
 pub fn try_count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
