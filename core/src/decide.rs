@@ -6,17 +6,27 @@
 //! plus the tallies in [`Decision`].
 
 use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES};
-use crate::{Coalition, Error, Rule};
+use crate::{Ballot, Coalition, Error, Rule};
 
 /// One condition's tally in an actual vote.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct AtomTally {
     /// Sum of the atom's attribute over the yes-voters.
     pub sum: u64,
-    /// The quota it had to reach.
+    /// The quota it had to reach (for a four-state condition: the quota of
+    /// the binary game, where everyone is present).
     pub quota: u64,
-    /// `sum >= quota`.
+    /// Whether the condition holds.
     pub met: bool,
+    /// Sum over the no-voters.
+    pub no: u64,
+    /// Sum over the abstainers.
+    pub abstain: u64,
+    /// Left-hand side of the condition: the yes-sum for a plain threshold,
+    /// `yes*Y + no*N + abstain*A` for a [`crate::Linear`] form.
+    pub lhs: i128,
+    /// Right-hand side: the quota, or the linear form's bound.
+    pub rhs: i128,
 }
 
 /// The outcome of one vote.
@@ -36,13 +46,63 @@ pub fn decide<W: AsRef<[u64]>, const B: usize>(
     let mut sums = [0u64; MAX_ATTRIBUTES];
     rule.yes_sums(yes, &mut sums)?;
     let mut tallies = heapless::Vec::new();
-    for atom in rule.atoms() {
-        let sum = sums.get(usize::from(atom.attribute)).copied().unwrap_or(0);
+    for (i, atom) in rule.atoms().iter().enumerate() {
+        let a = usize::from(atom.attribute);
+        let sum = sums.get(a).copied().unwrap_or(0);
+        // Two states: everyone present, everyone not voting yes votes no.
+        let no = rule.total(a).saturating_sub(sum);
+        let (lhs, rhs) = match rule.linear(i) {
+            Some(l) => (l.lhs(sum, no, 0), l.bound),
+            None => (i128::from(sum), i128::from(atom.quota)),
+        };
+        // The binary quota is exact for linear forms too (Linear::binary_quota).
+        let met = sum >= atom.quota;
         // Capacity equals MAX_ATOMS, which bounds rule.atoms().
         let _ = tallies.push(AtomTally {
             sum,
             quota: atom.quota,
-            met: sum >= atom.quota,
+            met,
+            no,
+            abstain: 0,
+            lhs,
+            rhs,
+        });
+    }
+    let passed = rule.eval(|i| tallies.get(i).is_some_and(|t| t.met));
+    Ok(Decision { passed, tallies })
+}
+
+/// Decides a four-state ballot: yes, no, abstain, absent.
+///
+/// Plain conditions count the yes-sum against their quota (abstaining and
+/// absent members simply do not add to it); [`crate::Linear`] conditions
+/// compare their weighted group sums with their bound. O(n * attributes + nodes).
+pub fn decide_ballot<W: AsRef<[u64]>, const B: usize>(
+    rule: &Rule<W>,
+    ballot: &Ballot<B>,
+) -> Result<Decision, Error> {
+    let mut yes = [0u64; MAX_ATTRIBUTES];
+    let mut no = [0u64; MAX_ATTRIBUTES];
+    let mut abstain = [0u64; MAX_ATTRIBUTES];
+    rule.yes_sums(ballot.yes(), &mut yes)?;
+    rule.yes_sums(ballot.no(), &mut no)?;
+    rule.yes_sums(ballot.abstain(), &mut abstain)?;
+    let mut tallies = heapless::Vec::new();
+    for (i, atom) in rule.atoms().iter().enumerate() {
+        let a = usize::from(atom.attribute);
+        let (y, n, ab) = (yes[a], no[a], abstain[a]);
+        let (met, lhs, rhs) = match rule.linear(i) {
+            Some(l) => (l.holds(y, n, ab), l.lhs(y, n, ab), l.bound),
+            None => (y >= atom.quota, i128::from(y), i128::from(atom.quota)),
+        };
+        let _ = tallies.push(AtomTally {
+            sum: y,
+            quota: atom.quota,
+            met,
+            no: n,
+            abstain: ab,
+            lhs,
+            rhs,
         });
     }
     let passed = rule.eval(|i| tallies.get(i).is_some_and(|t| t.met));

@@ -53,6 +53,8 @@ pub enum Error {
     EngineUnsuitable { engine: crate::Engine },
     /// The exact computation would take more work than the caller allows.
     TooCostly { estimate: u128, budget: u128 },
+    /// A member appears in two groups of a four-state ballot.
+    BallotOverlap { member: usize },
     /// The computation would need more memory than the caller allows.
     MemoryLimit { needed: u64, limit: u64 },
 }
@@ -104,6 +106,9 @@ impl fmt::Display for Error {
                 write!(f, "scratch of {given} elements is too small, {needed} needed")
             }
             EngineUnsuitable { engine } => write!(f, "the {} engine cannot handle this rule", engine.name()),
+            BallotOverlap { member } => {
+                write!(f, "member {member} appears in more than one of yes, no and abstain")
+            }
             MemoryLimit { needed, limit } => write!(
                 f,
                 "the computation needs at least {needed} bytes, over the memory limit of {limit}"

@@ -71,6 +71,7 @@
 #[cfg(feature = "alloc")]
 extern crate alloc;
 
+mod ballot;
 mod coalition;
 pub mod count;
 mod decide;
@@ -87,15 +88,18 @@ mod rule;
 mod analysis;
 #[cfg(feature = "alloc")]
 pub mod approx;
+#[cfg(feature = "alloc")]
+pub mod ternary;
 
+pub use ballot::{Ballot, Vote};
 pub use coalition::{Coalition, Members};
 pub use count::{Count1024, Counter, Wide};
-pub use decide::{critical, decide, AtomTally, Decision};
+pub use decide::{critical, decide, decide_ballot, AtomTally, Decision};
 pub use engine::Engine;
 pub use error::Error;
 pub use image::{ImageError, ImageInfo};
 pub use power::{MemberCounts, PowerTable, RuleCounts};
-pub use rule::{Atom, Node, Rule};
+pub use rule::{Atom, Condition, Linear, Node, Rule};
 
 #[cfg(feature = "alloc")]
 pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};

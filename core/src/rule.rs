@@ -24,6 +24,86 @@ pub struct Atom {
     pub quota: u64,
 }
 
+/// A condition over the four groups of a ballot, on one attribute:
+/// `yes * Y + no * N + abstain * A >= bound`, where Y, N and A are the
+/// attribute's sums over the members voting yes, voting no and abstaining
+/// (absent members count in none).
+///
+/// "More yes than no" is `Y - N >= 1`; "two thirds of those present and
+/// voting" is `3Y >= 2(Y + N)`, i.e. `Y - 2N >= 0`; a quorum "a third of all
+/// seats present" is `Y + N + A >= ceil(T / 3)`. Monotone in yes votes
+/// (switching any member to yes never defeats the motion) exactly when
+/// `yes >= no`, `yes >= abstain` and `yes >= 0`; anything else is
+/// [`Error::NonMonotone`]. Arithmetic is exact in `i128`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub struct Linear {
+    /// Index of the weight attribute.
+    pub attribute: u16,
+    /// Coefficient of the yes-sum.
+    pub yes: i32,
+    /// Coefficient of the no-sum.
+    pub no: i32,
+    /// Coefficient of the abstain-sum.
+    pub abstain: i32,
+    /// Right-hand side.
+    pub bound: i128,
+}
+
+impl Linear {
+    /// Whether switching any member to yes can never defeat the condition.
+    pub fn check_monotone(&self) -> Result<(), Error> {
+        if self.yes >= self.no && self.yes >= self.abstain && self.yes >= 0 {
+            Ok(())
+        } else {
+            Err(Error::NonMonotone)
+        }
+    }
+
+    /// Left-hand side for the given group sums.
+    pub fn lhs(&self, yes: u64, no: u64, abstain: u64) -> i128 {
+        i128::from(self.yes) * i128::from(yes)
+            + i128::from(self.no) * i128::from(no)
+            + i128::from(self.abstain) * i128::from(abstain)
+    }
+
+    /// Whether the condition holds for the given group sums.
+    pub fn holds(&self, yes: u64, no: u64, abstain: u64) -> bool {
+        self.lhs(yes, no, abstain) >= self.bound
+    }
+
+    /// The least yes-sum that meets the condition when every member is
+    /// present and votes yes or no (N = total - Y, A = 0): the binary game
+    /// the power indices measure. `total + 1` when no yes-sum meets it.
+    pub fn binary_quota(&self, total: u64) -> u64 {
+        // yes*Y + no*(T - Y) >= bound  <=>  (yes - no) Y >= bound - no*T
+        let d = i128::from(self.yes) - i128::from(self.no);
+        let need = self.bound - i128::from(self.no) * i128::from(total);
+        let never = u128::from(total) + 1;
+        let q: i128 = if d <= 0 {
+            if need <= 0 {
+                0
+            } else {
+                never as i128
+            }
+        } else {
+            // ceil(need / d) for any sign of need
+            let q = need.div_euclid(d) + i128::from(need.rem_euclid(d) != 0);
+            q.clamp(0, never as i128)
+        };
+        u64::try_from(q).unwrap_or(u64::MAX)
+    }
+}
+
+/// One condition of a rule as written: a plain yes-sum threshold or a
+/// four-state linear condition.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Condition {
+    /// The sum over the yes-voters reaches the quota.
+    Yes(Atom),
+    /// A linear condition over the yes, no and abstain sums.
+    Linear(Linear),
+}
+
 /// One node of a formula in postfix order.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub enum Node {
@@ -42,6 +122,10 @@ pub struct Rule<W: AsRef<[u64]>> {
     attributes: usize,
     weights: W,
     atoms: heapless::Vec<Atom, MAX_ATOMS>,
+    /// The four-state form of each atom (`None`: a plain yes-sum threshold).
+    linear: heapless::Vec<Option<Linear>, MAX_ATOMS>,
+    /// Sum of each attribute over all members (checked at construction).
+    totals: heapless::Vec<u64, MAX_ATTRIBUTES>,
     formula: heapless::Vec<Node, MAX_NODES>,
 }
 
@@ -75,10 +159,14 @@ impl<W: AsRef<[u64]>> Rule<W> {
                 limit: MAX_ATTRIBUTES,
             });
         }
+        let mut totals = heapless::Vec::new();
         for (a, row) in table.chunks_exact(members).enumerate() {
-            row.iter()
+            let total = row
+                .iter()
                 .try_fold(0u64, |acc, &w| acc.checked_add(w))
                 .ok_or(Error::WeightSumOverflow { attribute: a })?;
+            // attributes <= MAX_ATTRIBUTES was checked above.
+            let _ = totals.push(total);
         }
         let atoms_vec = heapless::Vec::from_slice(atoms).map_err(|_| Error::TooManyAtoms {
             atoms: atoms.len(),
@@ -97,13 +185,75 @@ impl<W: AsRef<[u64]>> Rule<W> {
             limit: MAX_NODES,
         })?;
         check_formula(formula, atoms.len())?;
+        let mut linear = heapless::Vec::new();
+        for _ in atoms {
+            // Same capacity as the atoms, which fit.
+            let _ = linear.push(None);
+        }
         Ok(Rule {
             members,
             attributes,
             weights,
             atoms: atoms_vec,
+            linear,
+            totals,
             formula: formula_vec,
         })
+    }
+
+    /// Builds a rule whose conditions may be four-state [`Linear`] forms.
+    ///
+    /// Each linear condition also gets the plain quota of the binary game
+    /// (everyone present, yes or no), which is what the power engines see.
+    pub fn with_conditions(
+        members: usize,
+        weights: W,
+        conditions: &[Condition],
+        formula: &[Node],
+    ) -> Result<Self, Error> {
+        let mut atoms: heapless::Vec<Atom, MAX_ATOMS> = heapless::Vec::new();
+        for c in conditions {
+            let attribute = match c {
+                Condition::Yes(a) => a.attribute,
+                Condition::Linear(l) => l.attribute,
+            };
+            atoms
+                .push(Atom { attribute, quota: 0 })
+                .map_err(|_| Error::TooManyAtoms {
+                    atoms: conditions.len(),
+                    limit: MAX_ATOMS,
+                })?;
+        }
+        let mut rule = Self::new(members, weights, &atoms, formula)?;
+        for (i, c) in conditions.iter().enumerate() {
+            match *c {
+                Condition::Yes(a) => rule.atoms[i].quota = a.quota,
+                Condition::Linear(l) => {
+                    l.check_monotone()?;
+                    rule.atoms[i].quota = l.binary_quota(rule.total(usize::from(l.attribute)));
+                    rule.linear[i] = Some(l);
+                }
+            }
+        }
+        Ok(rule)
+    }
+
+    /// The four-state form of atom `i`, if it has one.
+    pub fn linear(&self, i: usize) -> Option<Linear> {
+        self.linear.get(i).copied().flatten()
+    }
+
+    /// The conditions as written (plain or linear), in atom order.
+    pub fn condition(&self, i: usize) -> Option<Condition> {
+        match self.linear(i) {
+            Some(l) => Some(Condition::Linear(l)),
+            None => self.atoms.get(i).map(|a| Condition::Yes(*a)),
+        }
+    }
+
+    /// Whether any condition is a four-state form.
+    pub fn has_linear(&self) -> bool {
+        self.linear.iter().any(Option::is_some)
     }
 
     /// The weighted game `[quota; w1, ..., wn]`: one attribute, one atom.
@@ -148,11 +298,10 @@ impl<W: AsRef<[u64]>> Rule<W> {
         self.weights.as_ref()
     }
 
-    /// Sum of attribute `a` over all members (checked at construction).
+    /// Sum of attribute `a` over all members (checked at construction; 0
+    /// outside the table).
     pub fn total(&self, attribute: usize) -> u64 {
-        self.attribute_weights(attribute)
-            .iter()
-            .fold(0u64, |s, &w| s.saturating_add(w))
+        self.totals.get(attribute).copied().unwrap_or(0)
     }
 
     /// The atoms.
@@ -193,6 +342,22 @@ impl<W: AsRef<[u64]>> Rule<W> {
             atoms
                 .get(i)
                 .is_some_and(|a| sums.get(usize::from(a.attribute)).copied().unwrap_or(0) >= a.quota)
+        })
+    }
+
+    /// Evaluates the formula given the yes, no and abstain sums of every
+    /// attribute (four-state semantics; see [`Linear`]).
+    pub fn passes_with_group_sums(&self, yes: &[u64], no: &[u64], abstain: &[u64]) -> bool {
+        let get = |v: &[u64], a: usize| v.get(a).copied().unwrap_or(0);
+        eval_postfix(&self.formula, |i| {
+            let Some(atom) = self.atoms.get(i) else {
+                return false;
+            };
+            let a = usize::from(atom.attribute);
+            match self.linear(i) {
+                Some(l) => l.holds(get(yes, a), get(no, a), get(abstain, a)),
+                None => get(yes, a) >= atom.quota,
+            }
         })
     }
 
@@ -238,6 +403,8 @@ impl<W: AsRef<[u64]>> Rule<W> {
             attributes: self.attributes,
             weights: self.weights.as_ref(),
             atoms: self.atoms.clone(),
+            linear: self.linear.clone(),
+            totals: self.totals.clone(),
             formula: self.formula.clone(),
         }
     }
@@ -390,6 +557,50 @@ mod tests {
             }
         );
         assert!(Rule::new(1, &w[..], &atom, &f[..MAX_DEPTH + 1]).is_ok());
+    }
+
+    #[test]
+    fn binary_quotas_of_linear_forms() {
+        // seats yes > 1/2 of cast: 2Y > Y + N  <=>  Y - N >= 1; with T = 115,
+        // Y - (115 - Y) >= 1  <=>  Y >= 58 = "more than half of 115".
+        let l = Linear {
+            attribute: 0,
+            yes: 1,
+            no: -1,
+            abstain: 0,
+            bound: 1,
+        };
+        assert_eq!(l.binary_quota(115), 58);
+        assert_eq!(l.binary_quota(100), 51);
+        // count yes >= 2/3 of present: 3Y >= 2(Y + N + A)  <=>  Y - 2N - 2A >= 0;
+        // binary: 3Y >= 2T, T = 27: Y >= 18.
+        let l = Linear {
+            attribute: 0,
+            yes: 1,
+            no: -2,
+            abstain: -2,
+            bound: 0,
+        };
+        assert_eq!(l.binary_quota(27), 18);
+        // count present >= 9 (a quorum): everyone is present in the binary game.
+        let l = Linear {
+            attribute: 0,
+            yes: 1,
+            no: 1,
+            abstain: 1,
+            bound: 9,
+        };
+        assert_eq!(l.binary_quota(27), 0);
+        assert_eq!(l.binary_quota(5), 6); // 5 members can never make a quorum of 9
+                                          // Not monotone: a yes vote weighs less than a no vote.
+        let l = Linear {
+            attribute: 0,
+            yes: -1,
+            no: 0,
+            abstain: 0,
+            bound: -3,
+        };
+        assert_eq!(l.check_monotone(), Err(Error::NonMonotone));
     }
 
     #[test]

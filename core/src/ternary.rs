@@ -1,0 +1,441 @@
+//! Power and passage under abstention and attendance (feature `alloc`).
+//!
+//! **Ternary Banzhaf measure** (Felsenthal & Machover 1997, "Ternary voting
+//! games", International Journal of Game Theory 26; definition as we recall
+//! it, from memory): every member is present and votes yes, abstains or
+//! votes no, each with chance 1/3, independently. Member i's measure is
+//!
+//! β'_i = Σ_X [pass(X, i yes) − pass(X, i no)] / (2 · 3^(n−1)),
+//!
+//! the sum running over the 3^(n−1) ballots X of the others: the average of
+//! i's chances of turning the outcome by moving one step (no to abstain, or
+//! abstain to yes), since the two steps add up to the whole move. It lies
+//! in [0, 1/2]; for a rule with no four-state condition an abstention counts
+//! as not voting yes.
+//!
+//! **Passage under attendance**: each member is present with chance p and
+//! then votes yes or no with equal chance (no abstentions); the probability
+//! that the rule passes.
+//!
+//! Both are computed over profiles of member types (identical weights in
+//! every used attribute): Π (c_t + 1)(c_t + 2)/2 profiles weighted by
+//! multinomial coefficients, O(T (atoms + nodes)) each. Counts are exact
+//! in the caller's [`Counter`]; the attendance probability is an `f64`.
+
+use alloc::vec;
+use alloc::vec::Vec;
+
+use crate::count::{binomial, Counter};
+use crate::engine::profile::group_types;
+use crate::limits::MAX_ATTRIBUTES;
+use crate::{Error, Rule};
+
+/// Most profiles the functions here will visit.
+pub const MAX_PROFILES: u128 = 1 << 32;
+
+/// Exact ternary swing counts: `Σ_X [pass(X, i yes) − pass(X, i no)]` per member.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TernaryPower<C> {
+    /// One count per member.
+    pub swings: Vec<C>,
+    /// Number of members n (the measure divides by 2 · 3^(n−1)).
+    pub members: usize,
+}
+
+impl<C: Counter> TernaryPower<C> {
+    /// Felsenthal & Machover's ternary Banzhaf measure of member `i`.
+    pub fn measure(&self, i: usize) -> f64 {
+        let Some(&c) = self.swings.get(i) else { return 0.0 };
+        // c / (2 * 3^(n-1)) without forming 3^(n-1): scale step by step.
+        let (m, e) = c.to_f64_parts();
+        let mut v = libm::ldexp(m, e) / 2.0;
+        for _ in 1..self.members {
+            v /= 3.0;
+        }
+        v
+    }
+}
+
+struct Types {
+    order: Vec<u32>,
+    starts: Vec<u32>,
+    count: usize,
+}
+
+impl Types {
+    fn of<W: AsRef<[u64]>>(rule: &Rule<W>) -> Types {
+        let n = rule.members();
+        let mut order = vec![0u32; n];
+        let mut starts = vec![0u32; n + 1];
+        let count = group_types(rule, rule.used_attributes(), &mut order, &mut starts);
+        starts.truncate(count + 1);
+        Types { order, starts, count }
+    }
+    fn size(&self, t: usize) -> usize {
+        (self.starts[t + 1] - self.starts[t]) as usize
+    }
+    fn rep(&self, t: usize) -> usize {
+        self.order[self.starts[t] as usize] as usize
+    }
+    fn profiles(&self) -> u128 {
+        (0..self.count).fold(1u128, |p, t| {
+            let c = self.size(t) as u128;
+            p.saturating_mul((c + 1) * (c + 2) / 2)
+        })
+    }
+}
+
+/// Visits every three-way profile (y_t, a_t, n_t) of the types, calling
+/// `visit(digits, yes, no, abstain)` with the group sums of each attribute.
+fn for_each_profile<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    types: &Types,
+    mut visit: impl FnMut(&[(usize, usize)], &[u64], &[u64], &[u64]) -> Result<(), Error>,
+) -> Result<(), Error> {
+    let attributes = rule.attributes();
+    let t_count = types.count;
+    // digits[t] = (yes, abstain); the rest of the type votes no.
+    let mut digits = vec![(0usize, 0usize); t_count];
+    let mut yes = [0u64; MAX_ATTRIBUTES];
+    let mut no = [0u64; MAX_ATTRIBUTES];
+    let mut abstain = [0u64; MAX_ATTRIBUTES];
+    let sums = |digits: &[(usize, usize)],
+                yes: &mut [u64; MAX_ATTRIBUTES],
+                no: &mut [u64; MAX_ATTRIBUTES],
+                ab: &mut [u64; MAX_ATTRIBUTES]| {
+        for a in 0..attributes {
+            let (mut y, mut n, mut b) = (0u64, 0u64, 0u64);
+            for (t, &(dy, da)) in digits.iter().enumerate() {
+                let w = rule.weight(a, types.rep(t));
+                let c = types.size(t);
+                y += w * dy as u64;
+                b += w * da as u64;
+                n += w * (c - dy - da) as u64;
+            }
+            yes[a] = y;
+            no[a] = n;
+            ab[a] = b;
+        }
+    };
+    loop {
+        sums(&digits, &mut yes, &mut no, &mut abstain);
+        visit(
+            &digits,
+            &yes[..attributes],
+            &no[..attributes],
+            &abstain[..attributes],
+        )?;
+        // Advance: abstain count fastest, then yes count, type by type.
+        let mut t = 0;
+        loop {
+            if t == t_count {
+                return Ok(());
+            }
+            let c = types.size(t);
+            let (y, a) = digits[t];
+            if y + a < c {
+                digits[t] = (y, a + 1);
+                break;
+            }
+            if y < c {
+                digits[t] = (y + 1, 0);
+                break;
+            }
+            digits[t] = (0, 0);
+            t += 1;
+        }
+    }
+}
+
+/// Exact ternary swing counts of every member.
+pub fn ternary_banzhaf<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<TernaryPower<C>, Error> {
+    let n = rule.members();
+    let types = Types::of(rule);
+    let profiles = types.profiles();
+    if profiles > MAX_PROFILES {
+        return Err(Error::TooCostly {
+            estimate: profiles,
+            budget: MAX_PROFILES,
+        });
+    }
+    // Binomial tables per type: C(c, k) for k = 0..=c.
+    let binoms: Vec<Vec<C>> = (0..types.count)
+        .map(|t| {
+            let c = types.size(t) as u64;
+            (0..=c).map(|k| binomial(c, k)).collect::<Result<Vec<C>, Error>>()
+        })
+        .collect::<Result<_, _>>()?;
+    let mut per_type = vec![C::ZERO; types.count];
+    let attributes = rule.attributes();
+    for_each_profile(rule, &types, |digits, yes, no, abstain| {
+        if !rule.passes_with_group_sums(yes, no, abstain) {
+            return Ok(());
+        }
+        // Multiplicity: Π C(c, y) C(c - y, a).
+        let mut mult = C::ONE;
+        for (t, &(y, a)) in digits.iter().enumerate() {
+            let c = types.size(t);
+            let second = binomial::<C>((c - y) as u64, a as u64)?;
+            mult = mult.mul(binoms[t][y])?.mul(second)?;
+        }
+        for (t, &(y, _)) in digits.iter().enumerate() {
+            if y == 0 {
+                continue;
+            }
+            // Move one yes-voter of type t to no.
+            let (mut y2, mut n2) = ([0u64; MAX_ATTRIBUTES], [0u64; MAX_ATTRIBUTES]);
+            for a in 0..attributes {
+                let w = rule.weight(a, types.rep(t));
+                y2[a] = yes[a] - w;
+                n2[a] = no[a] + w;
+            }
+            if rule.passes_with_group_sums(&y2[..attributes], &n2[..attributes], abstain) {
+                continue;
+            }
+            // Ballots of this profile with one given member of type t voting yes.
+            let (share, r) = mult.mul_u64(y as u64)?.div_rem_u64(types.size(t) as u64);
+            debug_assert_eq!(r, 0);
+            per_type[t] = per_type[t].add(share)?;
+        }
+        Ok(())
+    })?;
+    let mut swings = vec![C::ZERO; n];
+    for t in 0..types.count {
+        for &m in &types.order[types.starts[t] as usize..types.starts[t + 1] as usize] {
+            swings[m as usize] = per_type[t];
+        }
+    }
+    Ok(TernaryPower { swings, members: n })
+}
+
+fn ln_choose(n: usize, k: usize) -> f64 {
+    libm::lgamma(n as f64 + 1.0) - libm::lgamma(k as f64 + 1.0) - libm::lgamma((n - k) as f64 + 1.0)
+}
+
+/// `k ln p`, with 0 for k = 0 (so a zero chance raised to the power 0 is 1).
+fn ln_power(p: f64, k: usize) -> f64 {
+    if k == 0 {
+        0.0
+    } else {
+        k as f64 * libm::log(p)
+    }
+}
+
+/// Probability that the rule passes when each member is present with
+/// chance `attendance` and then votes yes or no with equal chance.
+pub fn passage_with_attendance<W: AsRef<[u64]>>(rule: &Rule<W>, attendance: f64) -> Result<f64, Error> {
+    if !(0.0..=1.0).contains(&attendance) {
+        return Err(Error::BadFraction {
+            numerator: (attendance * 1000.0) as u64,
+            denominator: 1000,
+        });
+    }
+    let types = Types::of(rule);
+    let profiles = types.profiles();
+    if profiles > MAX_PROFILES {
+        return Err(Error::TooCostly {
+            estimate: profiles,
+            budget: MAX_PROFILES,
+        });
+    }
+    let p_yes = attendance / 2.0;
+    let p_absent = 1.0 - attendance;
+    let mut total = 0.0;
+    // Reuse the three-way profiles: the middle group stands for absent here.
+    let empty = [0u64; MAX_ATTRIBUTES];
+    for_each_profile(rule, &types, |digits, yes, no, absent_sums| {
+        let _ = absent_sums;
+        if !rule.passes_with_group_sums(yes, no, &empty[..yes.len()]) {
+            return Ok(());
+        }
+        // Multinomial weight times chances, in logarithms: counts reach
+        // C(536, 268) and more.
+        let mut log_prob = 0.0;
+        for (t, &(y, a)) in digits.iter().enumerate() {
+            let c = types.size(t);
+            let n = c - y - a;
+            log_prob += ln_choose(c, y) + ln_choose(c - y, a);
+            log_prob += ln_power(p_yes, y + n) + ln_power(p_absent, a);
+        }
+        let prob = libm::exp(log_prob);
+        total += prob;
+        Ok(())
+    })?;
+    Ok(total)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::analyze_with;
+    use crate::{decide_ballot, Ballot, Condition, Engine, Linear, Node, Vote};
+    use proptest::prelude::*;
+
+    /// A random rule of up to 7 members over seats and head count mixing
+    /// plain and four-state conditions.
+    fn rule_strategy() -> impl Strategy<Value = Rule<Vec<u64>>> {
+        (
+            1usize..=7,
+            prop::collection::vec(0u64..5, 7),
+            0usize..4,
+            0u64..12,
+            any::<bool>(),
+        )
+            .prop_map(|(n, seats, form, k, both)| {
+                let mut w: Vec<u64> = seats[..n].to_vec();
+                w.extend(core::iter::repeat_n(1u64, n));
+                let total: u64 = seats[..n].iter().sum();
+                let linear = match form {
+                    // seats yes > 1/2 of cast
+                    0 => Linear {
+                        attribute: 0,
+                        yes: 1,
+                        no: -1,
+                        abstain: 0,
+                        bound: 1,
+                    },
+                    // count yes >= 2/3 of present
+                    1 => Linear {
+                        attribute: 1,
+                        yes: 1,
+                        no: -2,
+                        abstain: -2,
+                        bound: 0,
+                    },
+                    // count present >= k (a quorum)
+                    2 => Linear {
+                        attribute: 1,
+                        yes: 1,
+                        no: 1,
+                        abstain: 1,
+                        bound: i128::from(k % (n as u64 + 2)),
+                    },
+                    // seats yes >= 2 * seats no
+                    _ => Linear {
+                        attribute: 0,
+                        yes: 1,
+                        no: -2,
+                        abstain: 0,
+                        bound: 0,
+                    },
+                };
+                let plain = crate::Atom {
+                    attribute: 0,
+                    quota: (total / 3).max(k % 3),
+                };
+                if both {
+                    Rule::with_conditions(
+                        n,
+                        w,
+                        &[Condition::Linear(linear), Condition::Yes(plain)],
+                        &[Node::Atom(0), Node::Atom(1), Node::All(2)],
+                    )
+                    .unwrap()
+                } else {
+                    Rule::with_conditions(n, w, &[Condition::Linear(linear)], &[Node::Atom(0)]).unwrap()
+                }
+            })
+    }
+
+    fn votes_of(mut code: usize, n: usize, states: &[Vote]) -> Vec<Vote> {
+        (0..n)
+            .map(|_| {
+                let v = states[code % states.len()];
+                code /= states.len();
+                v
+            })
+            .collect()
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
+        /// The profile computation equals a count over all 3^(n-1) ballots of the others.
+        #[test]
+        fn ternary_matches_enumeration(rule in rule_strategy()) {
+            let n = rule.members();
+            let fast = ternary_banzhaf::<_, u128>(&rule).unwrap();
+            let states = [Vote::Yes, Vote::Abstain, Vote::No];
+            for i in 0..n {
+                let mut count = 0u128;
+                for code in 0..3usize.pow(n as u32) {
+                    let votes = votes_of(code, n, &states);
+                    if votes[i] != Vote::Yes {
+                        continue;
+                    }
+                    let mut other = votes.clone();
+                    other[i] = Vote::No;
+                    let pass_yes = decide_ballot(&rule, &Ballot::<1>::from_votes(&votes).unwrap()).unwrap().passed;
+                    let pass_no = decide_ballot(&rule, &Ballot::<1>::from_votes(&other).unwrap()).unwrap().passed;
+                    prop_assert!(pass_yes || !pass_no, "monotone in yes votes");
+                    count += u128::from(pass_yes && !pass_no);
+                }
+                prop_assert_eq!(fast.swings[i], count, "member {}", i);
+            }
+        }
+
+        /// Attendance: the profile sum equals the sum over all 3^n ballots
+        /// (yes, no, absent) of their chances.
+        #[test]
+        fn attendance_matches_enumeration(rule in rule_strategy(), p in 0.0f64..=1.0) {
+            let n = rule.members();
+            let states = [Vote::Yes, Vote::No, Vote::Absent];
+            let mut total = 0.0;
+            for code in 0..3usize.pow(n as u32) {
+                let votes = votes_of(code, n, &states);
+                if decide_ballot(&rule, &Ballot::<1>::from_votes(&votes).unwrap()).unwrap().passed {
+                    total += votes.iter().map(|v| if *v == Vote::Absent { 1.0 - p } else { p / 2.0 }).product::<f64>();
+                }
+            }
+            let fast = passage_with_attendance(&rule, p).unwrap();
+            prop_assert!((fast - total).abs() < 1e-12, "{} vs {}", fast, total);
+            // Full attendance is the binary game's probability of passage.
+            if p == 1.0 {
+                let binary = analyze_with::<_, u128>(&rule, Engine::Enumerate).unwrap();
+                prop_assert!((fast - binary.rule.passage_probability()).abs() < 1e-12);
+            }
+        }
+
+        /// With no abstentions and no absences every four-state form decides
+        /// like its binary quota.
+        #[test]
+        fn binary_ballots_agree(rule in rule_strategy(), mask in 0u64..128) {
+            let n = rule.members();
+            let yes = crate::Coalition::<1>::from_words([mask & ((1 << n) - 1)]);
+            let four = decide_ballot(&rule, &Ballot::binary(yes, n).unwrap()).unwrap();
+            let two = crate::decide(&rule, &yes).unwrap();
+            prop_assert_eq!(four.passed, two.passed);
+            for (a, b) in four.tallies.iter().zip(&two.tallies) {
+                prop_assert_eq!(a.met, b.met);
+                prop_assert_eq!(a.lhs, b.lhs);
+            }
+        }
+    }
+
+    #[test]
+    fn full_attendance_of_an_odd_majority() {
+        // Majority of 3 (common practice): passes half the time with everyone
+        // present; with attendance p and "more yes than no among those
+        // present", by symmetry P(pass) = (1 - P(tie)) / 2.
+        let rule = Rule::with_conditions(
+            3,
+            vec![1u64; 3],
+            &[Condition::Linear(Linear {
+                attribute: 0,
+                yes: 1,
+                no: -1,
+                abstain: 0,
+                bound: 1,
+            })],
+            &[Node::Atom(0)],
+        )
+        .unwrap();
+        assert!((passage_with_attendance(&rule, 1.0).unwrap() - 0.5).abs() < 1e-15);
+        // Ties (Y = N): nobody present (q^3), or one yes and one no with one
+        // absent (3 * 2 * (p/2)^2 * q): P(tie) = q^3 + 1.5 p^2 q, q = 1 - p.
+        let p = 0.6;
+        let q = 1.0 - p;
+        let expected = (1.0 - (q * q * q + 1.5 * p * p * q)) / 2.0;
+        assert!((passage_with_attendance(&rule, p).unwrap() - expected).abs() < 1e-12);
+        assert!(passage_with_attendance(&rule, 1.5).is_err());
+    }
+}
