@@ -19,7 +19,7 @@
  * weights follow. A C program sizes static rule memory as
  * `CLOUT_RULE_HEADER_WORDS + members * attributes` `uint64_t`s.
  */
-#define CLOUT_RULE_HEADER_WORDS 256
+#define CLOUT_RULE_HEADER_WORDS 1024
 
 /**
  * Most members `clout_power` handles.
@@ -117,6 +117,10 @@ enum clout_result
    */
   CLOUT_RESULT_IMAGE_NODE_KIND = 107,
   /**
+   * A condition has an unknown kind.
+   */
+  CLOUT_RESULT_IMAGE_CONDITION_KIND = 108,
+  /**
    * The rule has no members.
    */
   CLOUT_RESULT_NO_MEMBERS = 200,
@@ -160,6 +164,10 @@ enum clout_result
    * An operator has no operands.
    */
   CLOUT_RESULT_EMPTY_OPERATOR = 210,
+  /**
+   * A four-state condition is not monotone (a vote for could defeat the motion).
+   */
+  CLOUT_RESULT_NON_MONOTONE = 211,
   /**
    * A ballot names a member the rule does not have.
    */

@@ -10,12 +10,13 @@
 //! the rule is in use.
 //!
 //! ## Rule memory
-//! A `clout_rule` pointer points at the first of `CLOUT_RULE_HEADER_WORDS +
-//! members * attributes` words. The first words hold a [`Slot`] (a tag that
-//! marks live rules, the heap size when the library allocated it, and the
-//! core's `Rule` whose weight table is the rest of the same memory). The
-//! same layout serves caller memory (`clout_rule_load`, no heap) and library
-//! memory (`clout_rule_new`).
+//! A rule takes `CLOUT_RULE_HEADER_WORDS + members * attributes` words. The
+//! header words hold a [`Slot`] (a tag that marks live rules, the heap size
+//! when the library allocated it, and the core's `Rule`), placed at the
+//! first address aligned for it; the `clout_rule` pointer points at the
+//! Slot. The weight table fills the words after the header. The same layout
+//! serves caller memory (`clout_rule_load`, no heap) and library memory
+//! (`clout_rule_new`, allocated aligned for the Slot, so the Slot is first).
 
 use core::mem::{align_of, size_of, MaybeUninit};
 use core::ptr;
@@ -30,7 +31,7 @@ use crate::status::clout_result;
 /// Words reserved at the start of a rule's memory for its header; the
 /// weights follow. A C program sizes static rule memory as
 /// `CLOUT_RULE_HEADER_WORDS + members * attributes` `uint64_t`s.
-pub const CLOUT_RULE_HEADER_WORDS: usize = 256;
+pub const CLOUT_RULE_HEADER_WORDS: usize = 1024;
 
 /// A loaded rule, as C sees it: an opaque type, only ever behind a pointer.
 pub struct clout_rule {
@@ -50,8 +51,9 @@ struct Slot {
     rule: Rule<SlotWeights>,
 }
 
-const _: () = assert!(size_of::<Slot>() <= CLOUT_RULE_HEADER_WORDS * size_of::<u64>());
-const _: () = assert!(align_of::<Slot>() <= align_of::<u64>());
+/// Bytes a Slot may have to skip to reach its alignment in `uint64_t` memory.
+const ALIGN_SLACK: usize = align_of::<Slot>().saturating_sub(align_of::<u64>());
+const _: () = assert!(size_of::<Slot>() + ALIGN_SLACK <= CLOUT_RULE_HEADER_WORDS * size_of::<u64>());
 
 /// The weight table of a loaded rule: the words after its header.
 pub(crate) struct SlotWeights {
@@ -141,13 +143,14 @@ pub(crate) fn write_text(
 
 /// The rule behind a handle, after checking that it points at a live rule.
 pub(crate) fn rule<'a>(handle: *const clout_rule) -> Result<&'a LoadedRule, clout_result> {
-    let slot = handle.cast::<Slot>();
-    check_pointer(slot, 1)?;
-    // SAFETY: a handle points at rule memory, whose first word is the tag;
+    let first = handle.cast::<u64>();
+    check_pointer(first, 1)?;
+    // SAFETY: a handle points at a Slot, whose first word is the tag;
     // reading it alone tells a live rule from zeroed or freed memory before
     // anything else is trusted.
-    let tag = unsafe { slot.cast::<u64>().read() };
-    if tag != TAG {
+    let tag = unsafe { first.read() };
+    let slot = handle.cast::<Slot>();
+    if tag != TAG || !slot.is_aligned() {
         return Err(clout_result::NotARule);
     }
     // SAFETY: the tag says `place_rule` wrote a whole Slot here.
@@ -184,21 +187,28 @@ fn place_rule(
         ptr::write_bytes(weights_ptr, 0, weights_len);
         slice::from_raw_parts_mut(weights_ptr, weights_len)
     };
-    let loaded = image::load(image, weights)?;
-    let owned = SlotWeights {
-        ptr: weights_ptr,
-        len: weights_len,
-    };
-    let rule = Rule::new(loaded.members(), owned, loaded.atoms(), loaded.formula())?;
+    // SlotWeights points where `load_with` wrote the table: into this memory.
+    let rule = image::load_with(image, weights, |table| SlotWeights {
+        ptr: table.as_ptr(),
+        len: table.len(),
+    })?;
     let slot = Slot {
         tag: TAG,
         heap_words,
         rule,
     };
-    // SAFETY: the header words lie inside the caller's memory, which is
-    // aligned for u64 and so for Slot (checked at compile time above).
-    unsafe { mem.cast::<Slot>().write(slot) };
-    Ok(mem.cast::<clout_rule>())
+    // At most ALIGN_SLACK bytes from the start, so the Slot stays inside the
+    // header words (checked at compile time above).
+    let skip = mem.align_offset(align_of::<Slot>());
+    if skip.saturating_mul(size_of::<u64>()) > ALIGN_SLACK {
+        return Err(clout_result::Misaligned);
+    }
+    // SAFETY: `skip` words into the caller's memory is aligned for Slot and
+    // leaves room for it before the weights.
+    let at = unsafe { mem.add(skip) }.cast::<Slot>();
+    // SAFETY: as just said; the memory is the caller's to lend.
+    unsafe { at.write(slot) };
+    Ok(at.cast::<clout_rule>())
 }
 
 /// Loads `image` into caller memory.
@@ -210,8 +220,14 @@ pub(crate) fn load_into(
     Ok(place_rule(mem, mem_words, image, 0)?.cast_const())
 }
 
+/// The heap layout of a rule of `words` words: aligned for its Slot, which
+/// therefore starts the allocation.
 fn heap_layout(words: usize) -> Result<Layout, clout_result> {
-    Layout::array::<u64>(words).map_err(|_| clout_result::LengthTooLarge)
+    let bytes = words
+        .checked_mul(size_of::<u64>())
+        .ok_or(clout_result::LengthTooLarge)?;
+    Layout::from_size_align(bytes, align_of::<Slot>().max(align_of::<u64>()))
+        .map_err(|_| clout_result::LengthTooLarge)
 }
 
 /// Loads `image` into memory the library allocates.
@@ -243,8 +259,9 @@ pub(crate) fn free(handle: *mut clout_rule) -> Result<(), clout_result> {
     }
     let layout = heap_layout(words)?;
     // SAFETY: a non-zero heap size means `load_new` allocated this memory
-    // with this layout; clearing the tag first lets a later use of a stale
-    // handle be caught while the memory is not yet reused.
+    // with this layout, and the Slot (the handle) starts it; clearing the tag
+    // first lets a later use of a stale handle be caught while the memory is
+    // not yet reused.
     unsafe {
         (*slot).tag = 0;
         dealloc(handle.cast::<u8>(), layout);

@@ -54,6 +54,8 @@ pub enum clout_result {
     ImageLayout = 106,
     /// A formula node has an unknown kind.
     ImageNodeKind = 107,
+    /// A condition has an unknown kind.
+    ImageConditionKind = 108,
     /// The rule has no members.
     NoMembers = 200,
     /// More members than this build holds.
@@ -76,6 +78,8 @@ pub enum clout_result {
     MalformedFormula = 209,
     /// An operator has no operands.
     EmptyOperator = 210,
+    /// A four-state condition is not monotone (a vote for could defeat the motion).
+    NonMonotone = 211,
     /// A ballot names a member the rule does not have.
     BallotMember = 300,
     /// A ballot lists a member twice.
@@ -92,7 +96,7 @@ pub enum clout_result {
 
 impl clout_result {
     /// Every code, in value order.
-    pub const ALL: [clout_result; 35] = {
+    pub const ALL: [clout_result; 37] = {
         use clout_result::*;
         [
             Ok,
@@ -113,6 +117,7 @@ impl clout_result {
             ImageWidth,
             ImageLayout,
             ImageNodeKind,
+            ImageConditionKind,
             NoMembers,
             TooManyMembers,
             TooManyAttributes,
@@ -124,6 +129,7 @@ impl clout_result {
             UnknownCondition,
             MalformedFormula,
             EmptyOperator,
+            NonMonotone,
             BallotMember,
             BallotDuplicate,
             PowerCapacity,
@@ -162,6 +168,7 @@ impl clout_result {
             ImageWidth => "image has a weight width other than 1, 2, 4 or 8 bytes",
             ImageLayout => "image length does not match its sections",
             ImageNodeKind => "image has a formula node of unknown kind",
+            ImageConditionKind => "image has a condition of unknown kind",
             NoMembers => "the rule has no members",
             TooManyMembers => "the rule has more members than this build holds",
             TooManyAttributes => "the rule has more than 64 weight attributes",
@@ -173,6 +180,7 @@ impl clout_result {
             UnknownCondition => "a formula node uses a condition that does not exist",
             MalformedFormula => "the formula is not a single tree",
             EmptyOperator => "an operator has no operands",
+            NonMonotone => "a four-state condition is not monotone: a vote for could defeat the motion",
             BallotMember => "the ballot names a member the rule does not have",
             BallotDuplicate => "the ballot lists a member twice",
             PowerCapacity => "power indices need a rule of at most 64 members",
@@ -198,6 +206,7 @@ impl From<Error> for clout_result {
             Error::UnknownAtom { .. } => UnknownCondition,
             Error::MalformedFormula { .. } => MalformedFormula,
             Error::EmptyOperator { .. } => EmptyOperator,
+            Error::NonMonotone => NonMonotone,
             Error::BallotMismatch { .. } => BallotMember,
             Error::CountOverflow => CountOverflow,
             Error::TooCostly { .. } => TooCostly,
@@ -221,6 +230,7 @@ impl From<ImageError> for clout_result {
             ImageError::BadWidth { .. } => ImageWidth,
             ImageError::LayoutMismatch { .. } => ImageLayout,
             ImageError::BadNodeKind { .. } => ImageNodeKind,
+            ImageError::BadConditionKind { .. } => ImageConditionKind,
             ImageError::Rule(e) => e.into(),
             ImageError::BufferTooSmall { .. } => BufferTooSmall,
             _ => Internal,

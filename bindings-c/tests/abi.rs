@@ -11,7 +11,7 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
 use clout_core::image::{self, crc32, CHECKSUM_LEN};
-use clout_core::{Atom, Node, Rule};
+use clout_core::{Atom, Condition, Linear, Node, Rule};
 
 fn manifest_dir() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -146,9 +146,28 @@ fn images() -> Vec<(&'static str, Vec<u8>)> {
     let quota = costly.iter().sum::<u64>() / 2 + 1;
     let costly = Rule::weighted(quota, costly).unwrap();
 
+    // "More yes than no" as a four-state condition over weights 2, 1, 1.
+    let majority = Linear {
+        attribute: 0,
+        yes: 1,
+        no: -1,
+        abstain: 0,
+        bound: 1,
+    };
+    let present = Rule::with_conditions(
+        3,
+        vec![2u64, 1, 1],
+        &[Condition::Linear(majority)],
+        &[Node::Atom(0)],
+    )
+    .unwrap();
+    let present = image::encode(&present);
+
     // Offsets in the [12; 4,4,4,2,2,1] image (docs/image-format.md):
     // 4 version, 6 attributes, 8 length, 12 members, 16 atoms, 18 nodes,
-    // 20 width, 21..27 weights, 27 atom (attribute, quota), 37 node (kind, argument).
+    // 20 width, 21..27 weights, 27 condition (kind, attribute, quota),
+    // 38 node (kind, argument), 41 checksum. In the four-state image the
+    // condition starts at 24 and its no coefficient at 31.
     let mut trailing = eec.clone();
     trailing.push(0);
     let mut bad_checksum = eec.clone();
@@ -178,7 +197,8 @@ fn images() -> Vec<(&'static str, Vec<u8>)> {
         ("damaged-checksum.img", bad_checksum),
         ("damaged-width.img", patched(&eec, 20, &[3])),
         ("damaged-layout.img", patched(&eec, 20, &[2])),
-        ("damaged-node-kind.img", patched(&eec, 37, &[7])),
+        ("damaged-node-kind.img", patched(&eec, 38, &[7])),
+        ("damaged-condition-kind.img", patched(&eec, 27, &[9])),
         ("damaged-no-members.img", patched(&eec, 12, &[0, 0, 0, 0])),
         (
             "damaged-too-many-members.img",
@@ -189,10 +209,15 @@ fn images() -> Vec<(&'static str, Vec<u8>)> {
         ("damaged-too-many-nodes.img", patched(&eec, 18, &[129, 0])),
         ("damaged-too-deep.img", too_deep),
         ("damaged-weight-sum.img", overflow),
-        ("damaged-unknown-attribute.img", patched(&eec, 27, &[1])),
-        ("damaged-unknown-condition.img", patched(&eec, 38, &[1])),
-        ("damaged-malformed-formula.img", patched(&eec, 37, &[1, 1, 0])),
-        ("damaged-empty-operator.img", patched(&eec, 37, &[1, 0, 0])),
+        ("damaged-unknown-attribute.img", patched(&eec, 28, &[1])),
+        ("damaged-unknown-condition.img", patched(&eec, 39, &[1])),
+        ("damaged-malformed-formula.img", patched(&eec, 38, &[1, 1, 0])),
+        ("damaged-empty-operator.img", patched(&eec, 38, &[1, 0, 0])),
+        (
+            "damaged-non-monotone.img",
+            patched(&present, 31, &5i32.to_le_bytes()),
+        ),
+        ("present.img", present),
     ]
 }
 

@@ -5,35 +5,37 @@
 //!   [`encoded_len`] bytes; [`encode`] (feature `alloc`) returns a `Vec`.
 //! * [`load`] checks an image completely, then writes its weights into a
 //!   caller buffer of [`weights_needed`] `u64`s and returns a
-//!   `Rule<&[u64]>` over that buffer. Nothing allocates.
+//!   `Rule<&[u64]>` over that buffer ([`load_with`] wraps the buffer in a
+//!   weight type of the caller's). Nothing allocates.
 //! * [`inspect`] says what an image holds and whether it is intact
 //!   ([`ImageInfo`] implements `Display`).
 //!
 //! The byte-by-byte layout is in `docs/image-format.md`. In short: a 20-byte
 //! header (magic `\x89CLR`, format version, sizes, total length), one width
-//! byte per attribute, the weight rows at that width, the atoms (10 bytes
-//! each), the postfix formula (3 bytes a node) and a CRC-32 of everything
-//! before it.
+//! byte per attribute, the weight rows at that width, the conditions (a
+//! kind byte, then 10 bytes for a yes-sum threshold or 30 for a four-state
+//! linear form), the postfix formula (3 bytes a node) and a CRC-32 of
+//! everything before it.
 //!
 //! Checks run in a fixed order, so every damaged image gets the same error
 //! everywhere: magic, header length, version, declared length (truncated or
 //! trailing bytes), checksum, capacity (members, attributes, atoms, nodes
-//! against [`crate::limits`]), widths, section layout, weight sums, node
-//! kinds, then the rule itself (indices in range, the formula one tree within
-//! the depth limit). A device build (no `alloc`) holds 64 members, so an
+//! against [`crate::limits`]), widths, condition kinds, section layout,
+//! weight sums, node kinds, then the rule itself (indices in range, linear
+//! forms monotone, the formula one tree within the depth limit). A device build (no `alloc`) holds 64 members, so an
 //! image of a larger rule is refused with
 //! [`Error::TooManyMembers`] inside [`ImageError::Rule`].
 //!
 //! Time: O(image length) for the checksum (bitwise CRC, about 8 steps a byte)
 //! plus O(members * attributes) to decode. Space: no heap; `load` keeps the
-//! parsed atoms and nodes on the stack (under 2 KiB) besides the returned
-//! `Rule`. Lengths are computed in `usize` from sizes that were first
+//! parsed conditions and nodes on the stack (about 3.5 KiB) and builds a
+//! stand-in rule for the rule checks, besides the returned `Rule`. Lengths are computed in `usize` from sizes that were first
 //! checked against the limits, so they cannot overflow.
 
 use core::fmt;
 
 use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_MEMBERS, MAX_NODES};
-use crate::{Atom, Error, Node, Rule};
+use crate::{Atom, Condition, Error, Linear, Node, Rule};
 
 /// The first four bytes of every image. The high first byte catches
 /// transfers that strip the eighth bit; the rest reads "CLR".
@@ -48,11 +50,19 @@ pub const HEADER_LEN: usize = 20;
 /// Bytes of the trailing checksum.
 pub const CHECKSUM_LEN: usize = 4;
 
-/// Bytes of one encoded atom: attribute (u16) and quota (u64).
-pub const ATOM_LEN: usize = 10;
+/// Bytes of an encoded yes-sum threshold: kind (u8), attribute (u16), quota (u64).
+pub const THRESHOLD_LEN: usize = 11;
+
+/// Bytes of an encoded four-state linear condition: kind (u8), attribute
+/// (u16), yes, no and abstain coefficients (i32 each), bound (i128).
+pub const LINEAR_LEN: usize = 31;
 
 /// Bytes of one encoded formula node: kind (u8) and argument (u16).
 pub const NODE_LEN: usize = 3;
+
+/// Condition kinds as stored.
+const KIND_THRESHOLD: u8 = 0;
+const KIND_LINEAR: u8 = 1;
 
 /// Node kinds as stored.
 const KIND_ATOM: u8 = 0;
@@ -63,7 +73,7 @@ const KIND_ANY: u8 = 2;
 /// reached, 8-byte weights).
 const MAX_IMAGE_LEN: usize = HEADER_LEN
     + MAX_ATTRIBUTES * (1 + 65_535 * 8)
-    + MAX_ATOMS * ATOM_LEN
+    + MAX_ATOMS * LINEAR_LEN
     + MAX_NODES * NODE_LEN
     + CHECKSUM_LEN;
 // The header stores the length as a u32.
@@ -91,8 +101,11 @@ pub enum ImageError {
     LayoutMismatch { declared: usize, expected: usize },
     /// A formula node has a kind other than atom (0), all (1) or any (2).
     BadNodeKind { node: usize, kind: u8 },
+    /// A condition has a kind other than threshold (0) or linear (1).
+    BadConditionKind { atom: usize, kind: u8 },
     /// The decoded rule is invalid: sizes beyond capacity, an index out of
-    /// range, a formula that is not one tree, a weight sum over `u64::MAX`.
+    /// range, a formula that is not one tree, a weight sum over `u64::MAX`,
+    /// a linear condition that is not monotone.
     Rule(Error),
     /// A caller buffer (weights for [`load`], bytes for [`encode_into`]) is too small.
     BufferTooSmall { needed: usize, given: usize },
@@ -131,6 +144,10 @@ impl fmt::Display for ImageError {
             BadNodeKind { node, kind } => write!(
                 f,
                 "formula node {node} has kind {kind}; kinds are 0 (atom), 1 (all) and 2 (any)"
+            ),
+            BadConditionKind { atom, kind } => write!(
+                f,
+                "condition {atom} has kind {kind}; kinds are 0 (threshold) and 1 (linear)"
             ),
             Rule(e) => write!(f, "image holds an invalid rule: {e}"),
             BufferTooSmall { needed, given } => {
@@ -247,6 +264,14 @@ fn u32_at(bytes: &[u8], at: usize) -> u32 {
     u32::from_le_bytes(b)
 }
 
+fn i128_at(bytes: &[u8], at: usize) -> i128 {
+    let mut b = [0u8; 16];
+    if let Some(src) = bytes.get(at..at + 16) {
+        b.copy_from_slice(src);
+    }
+    i128::from_le_bytes(b)
+}
+
 /// An unsigned little-endian integer of `width <= 8` bytes at `at` (0 beyond the data).
 fn uint_at(bytes: &[u8], at: usize, width: usize) -> u64 {
     let mut b = [0u8; 8];
@@ -345,16 +370,42 @@ fn check_capacity(h: &Header) -> Result<(), Error> {
     Ok(())
 }
 
-/// A fully checked image: where each section starts, and the parsed atoms
-/// and formula.
+/// A fully checked image: where each weight row starts, and the parsed
+/// conditions and formula.
 struct Checked<'a> {
     bytes: &'a [u8],
     members: usize,
     attributes: usize,
     /// Byte offset of each attribute's weight row and its width.
     rows: [(usize, usize); MAX_ATTRIBUTES],
-    atoms: heapless::Vec<Atom, MAX_ATOMS>,
+    conditions: heapless::Vec<Condition, MAX_ATOMS>,
     formula: heapless::Vec<Node, MAX_NODES>,
+}
+
+/// The condition stored at `at`, or its unknown kind.
+fn condition_at(bytes: &[u8], at: usize) -> Result<Condition, u8> {
+    let attribute = u16_at(bytes, at + 1);
+    match bytes.get(at).copied().unwrap_or(u8::MAX) {
+        KIND_THRESHOLD => Ok(Condition::Yes(Atom {
+            attribute,
+            quota: uint_at(bytes, at + 3, 8),
+        })),
+        KIND_LINEAR => Ok(Condition::Linear(Linear {
+            attribute,
+            yes: u32_at(bytes, at + 3) as i32,
+            no: u32_at(bytes, at + 7) as i32,
+            abstain: u32_at(bytes, at + 11) as i32,
+            bound: i128_at(bytes, at + 15),
+        })),
+        kind => Err(kind),
+    }
+}
+
+fn condition_len(c: &Condition) -> usize {
+    match c {
+        Condition::Yes(_) => THRESHOLD_LEN,
+        Condition::Linear(_) => LINEAR_LEN,
+    }
 }
 
 impl Checked<'_> {
@@ -389,8 +440,24 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
         *row = (at, usize::from(width));
         at += n * usize::from(width);
     }
-    let atoms_at = at;
-    let nodes_at = atoms_at + h.atoms * ATOM_LEN;
+    // Condition records differ in length by kind, so the layout is known
+    // only after reading each kind (as far as the declared length reaches).
+    let body_end = h.declared_len - CHECKSUM_LEN;
+    let mut conditions = heapless::Vec::new();
+    for k in 0..h.atoms {
+        if at >= body_end {
+            let rest = (h.atoms - k) * THRESHOLD_LEN + h.nodes * NODE_LEN + CHECKSUM_LEN;
+            return Err(ImageError::LayoutMismatch {
+                declared: h.declared_len,
+                expected: at + rest,
+            });
+        }
+        let c = condition_at(bytes, at).map_err(|kind| ImageError::BadConditionKind { atom: k, kind })?;
+        at += condition_len(&c);
+        // Capacity was checked against MAX_ATOMS above.
+        let _ = conditions.push(c);
+    }
+    let nodes_at = at;
     let expected = nodes_at + h.nodes * NODE_LEN + CHECKSUM_LEN;
     if expected != h.declared_len {
         return Err(ImageError::LayoutMismatch {
@@ -404,22 +471,13 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
         members: n,
         attributes,
         rows,
-        atoms: heapless::Vec::new(),
+        conditions,
         formula: heapless::Vec::new(),
     };
     for a in 0..attributes {
         (0..n)
             .try_fold(0u64, |sum, i| sum.checked_add(checked.weight(a, i)))
             .ok_or(Error::WeightSumOverflow { attribute: a })?;
-    }
-    for k in 0..h.atoms {
-        let at = atoms_at + k * ATOM_LEN;
-        let atom = Atom {
-            attribute: u16_at(bytes, at),
-            quota: uint_at(bytes, at + 2, 8),
-        };
-        // Capacity was checked against MAX_ATOMS above.
-        let _ = checked.atoms.push(atom);
     }
     for k in 0..h.nodes {
         let at = nodes_at + k * NODE_LEN;
@@ -432,12 +490,12 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
         };
         let _ = checked.formula.push(node);
     }
-    // The rule's own checks (atom attributes in range, formula one tree over
-    // existing atoms, depth) do not depend on the weights or on the member
-    // count, so a one-member rule with a zero row per attribute runs them
-    // without a buffer of the real size.
+    // The rule's own checks (attributes in range, linear forms monotone,
+    // formula one tree over existing atoms, depth) do not depend on the
+    // weights or on the member count, so a one-member rule with a zero row
+    // per attribute runs them without a buffer of the real size.
     let zeros = [0u64; MAX_ATTRIBUTES];
-    Rule::new(1, &zeros[..attributes], &checked.atoms, &checked.formula)?;
+    Rule::with_conditions(1, &zeros[..attributes], &checked.conditions, &checked.formula)?;
     Ok(checked)
 }
 
@@ -455,6 +513,18 @@ pub fn weights_needed(bytes: &[u8]) -> Result<usize, ImageError> {
 /// prefix is used. Nothing is written to `weights` unless the image passes
 /// every check.
 pub fn load<'w>(bytes: &[u8], weights: &'w mut [u64]) -> Result<Rule<&'w [u64]>, ImageError> {
+    load_with(bytes, weights, |table| table)
+}
+
+/// [`load`], with the filled weight table (exactly [`weights_needed`]
+/// elements) handed to `wrap`, whose result becomes the rule's weight type:
+/// for a handle that must own its table without a lifetime, such as the C
+/// ABI's.
+pub fn load_with<'w, W: AsRef<[u64]>>(
+    bytes: &[u8],
+    weights: &'w mut [u64],
+    wrap: impl FnOnce(&'w [u64]) -> W,
+) -> Result<Rule<W>, ImageError> {
     let c = check(bytes)?;
     let needed = c.members * c.attributes;
     let given = weights.len();
@@ -468,7 +538,12 @@ pub fn load<'w>(bytes: &[u8], weights: &'w mut [u64]) -> Result<Rule<&'w [u64]>,
         }
     }
     let table: &'w [u64] = table;
-    Ok(Rule::new(c.members, table, &c.atoms, &c.formula)?)
+    Ok(Rule::with_conditions(
+        c.members,
+        wrap(table),
+        &c.conditions,
+        &c.formula,
+    )?)
 }
 
 /// What the image holds and whether it is intact. Fails only when not even
@@ -517,7 +592,11 @@ pub fn encoded_len<W: AsRef<[u64]>>(rule: &Rule<W>) -> usize {
     let rows: usize = (0..rule.attributes())
         .map(|a| 1 + rule.members() * width_of(rule, a))
         .sum();
-    HEADER_LEN + rows + rule.atoms().len() * ATOM_LEN + rule.formula().len() * NODE_LEN + CHECKSUM_LEN
+    let conditions: usize = (0..rule.atoms().len())
+        .filter_map(|i| rule.condition(i))
+        .map(|c| condition_len(&c))
+        .sum();
+    HEADER_LEN + rows + conditions + rule.formula().len() * NODE_LEN + CHECKSUM_LEN
 }
 
 /// Writes `rule`'s image into the front of `out` and returns its length.
@@ -549,9 +628,22 @@ pub fn encode_into<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut [u8]) -> Result<us
             w.put(&weight.to_le_bytes()[..width]);
         }
     }
-    for atom in rule.atoms() {
-        w.put(&atom.attribute.to_le_bytes());
-        w.put(&atom.quota.to_le_bytes());
+    for condition in (0..rule.atoms().len()).filter_map(|i| rule.condition(i)) {
+        match condition {
+            Condition::Yes(atom) => {
+                w.put(&[KIND_THRESHOLD]);
+                w.put(&atom.attribute.to_le_bytes());
+                w.put(&atom.quota.to_le_bytes());
+            }
+            Condition::Linear(l) => {
+                w.put(&[KIND_LINEAR]);
+                w.put(&l.attribute.to_le_bytes());
+                for coefficient in [l.yes, l.no, l.abstain] {
+                    w.put(&coefficient.to_le_bytes());
+                }
+                w.put(&l.bound.to_le_bytes());
+            }
+        }
     }
     for node in rule.formula() {
         let (kind, arg) = match *node {
@@ -595,24 +687,24 @@ impl Writer<'_> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::{critical, decide, Coalition};
+    use crate::{critical, decide, decide_ballot, Ballot, Coalition, Vote};
     use proptest::prelude::*;
 
     /// [12; 4,4,4,2,2,1] byte by byte, as docs/image-format.md lays it out.
     /// The CRC was computed independently with Python's `zlib.crc32`.
-    const EEC_IMAGE: [u8; 44] = [
+    const EEC_IMAGE: [u8; 45] = [
         0x89, b'C', b'L', b'R', // magic
         1, 0, // version
         1, 0, // attributes
-        44, 0, 0, 0, // length
+        45, 0, 0, 0, // length
         6, 0, 0, 0, // members
         1, 0, // atoms
         1, 0, // nodes
         1, // width of attribute 0
         4, 4, 4, 2, 2, 1, // weights
-        0, 0, 12, 0, 0, 0, 0, 0, 0, 0, // atom 0: attribute 0, quota 12
+        0, 0, 0, 12, 0, 0, 0, 0, 0, 0, 0, // condition 0: threshold, attribute 0, quota 12
         0, 0, 0, // node 0: atom 0
-        0x0b, 0x10, 0x31, 0x91, // CRC-32
+        0xa0, 0x48, 0xa3, 0x7c, // CRC-32
     ];
 
     fn eec() -> Rule<[u64; 6]> {
@@ -682,12 +774,12 @@ mod tests {
             ImageError::BufferTooSmall { needed: 6, given: 5 }
         );
         assert_eq!(w, [7; 5], "nothing written on failure");
-        let mut out = [0u8; 43];
+        let mut out = [0u8; 44];
         assert_eq!(
             encode_into(&eec(), &mut out),
             Err(ImageError::BufferTooSmall {
-                needed: 44,
-                given: 43
+                needed: 45,
+                given: 44
             })
         );
     }
@@ -739,8 +831,8 @@ mod tests {
         assert_eq!(
             load_err(&trailing),
             ImageError::TrailingBytes {
-                declared: 44,
-                len: 45
+                declared: 45,
+                len: 46
             }
         );
         assert_eq!(
@@ -787,28 +879,36 @@ mod tests {
         assert_eq!(
             with(20, &[2]),
             ImageError::LayoutMismatch {
-                declared: 44,
-                expected: 50
+                declared: 45,
+                expected: 51
             }
         );
-        assert_eq!(with(37, &[3]), ImageError::BadNodeKind { node: 0, kind: 3 });
+        assert_eq!(with(27, &[5]), ImageError::BadConditionKind { atom: 0, kind: 5 });
         assert_eq!(
             with(27, &[1]),
+            ImageError::LayoutMismatch {
+                declared: 45,
+                expected: 65
+            }
+        );
+        assert_eq!(with(38, &[3]), ImageError::BadNodeKind { node: 0, kind: 3 });
+        assert_eq!(
+            with(28, &[1]),
             ImageError::Rule(Error::UnknownAttribute {
                 atom: 0,
                 attribute: 1
             })
         );
         assert_eq!(
-            with(38, &[1]),
+            with(39, &[1]),
             ImageError::Rule(Error::UnknownAtom { node: 0, atom: 1 })
         );
         assert_eq!(
-            with(37, &[1, 1, 0]),
+            with(38, &[1, 1, 0]),
             ImageError::Rule(Error::MalformedFormula { node: 0 })
         );
         assert_eq!(
-            with(37, &[1, 0, 0]),
+            with(38, &[1, 0, 0]),
             ImageError::Rule(Error::EmptyOperator { node: 0 })
         );
     }
@@ -858,6 +958,45 @@ mod tests {
         );
     }
 
+    /// A fictional majority of those present: more yes than no
+    /// (`Y - N >= 1`), stored as a four-state linear condition.
+    fn more_yes_than_no() -> Rule<[u64; 3]> {
+        let l = Linear {
+            attribute: 0,
+            yes: 1,
+            no: -1,
+            abstain: 0,
+            bound: 1,
+        };
+        Rule::with_conditions(3, [2u64, 1, 1], &[Condition::Linear(l)], &[Node::Atom(0)]).unwrap()
+    }
+
+    #[test]
+    fn linear_conditions_round_trip() {
+        let rule = more_yes_than_no();
+        let image = encoded(&rule);
+        assert_eq!(
+            image.len(),
+            HEADER_LEN + 1 + 3 + LINEAR_LEN + NODE_LEN + CHECKSUM_LEN
+        );
+        let mut w = [0u64; 3];
+        let loaded = load(&image, &mut w).unwrap();
+        assert_eq!(loaded.condition(0), rule.condition(0));
+        assert_eq!(loaded.atoms(), rule.atoms());
+        // Member 0 (weight 2) yes, member 1 (1) no, member 2 abstains: 2 - 1 >= 1.
+        let votes = [Vote::Yes, Vote::No, Vote::Abstain];
+        let ballot = Ballot::<1>::from_votes(&votes).unwrap();
+        assert!(decide_ballot(&loaded, &ballot).unwrap().passed);
+
+        // A no coefficient above the yes one is not monotone: refused even
+        // with the checksum fixed.
+        let mut damaged = image.clone();
+        let no_at = HEADER_LEN + 1 + 3 + 1 + 2 + 4;
+        damaged[no_at..no_at + 4].copy_from_slice(&5i32.to_le_bytes());
+        reseal(&mut damaged);
+        assert_eq!(load_err(&damaged), ImageError::Rule(Error::NonMonotone));
+    }
+
     #[test]
     fn inspect_describes_contents_and_integrity() {
         let info = inspect(&EEC_IMAGE).unwrap();
@@ -868,19 +1007,19 @@ mod tests {
         );
         assert_eq!(
             std::format!("{info}"),
-            "clout rule image, format version 1, 44 bytes declared, 44 given\n\
+            "clout rule image, format version 1, 45 bytes declared, 45 given\n\
              6 members, 1 weight attributes, 1 conditions, 1 formula nodes\n\
-             checksum 0x9131100b (CRC-32) matches\n\
+             checksum 0x7ca348a0 (CRC-32) matches\n\
              intact: every check passed"
         );
         let mut damaged = EEC_IMAGE;
         damaged[25] = 9;
         let info = inspect(&damaged).unwrap();
-        assert_eq!(info.computed_checksum, Some(crc32(&damaged[..40])));
+        assert_eq!(info.computed_checksum, Some(crc32(&damaged[..41])));
         let text = std::format!("{info}");
         assert!(text.contains("(CRC-32) stored, 0x"), "{text}");
         assert!(
-            text.contains("damaged: image damaged: stored checksum 0x9131100b"),
+            text.contains("damaged: image damaged: stored checksum 0x7ca348a0"),
             "{text}"
         );
         assert!(matches!(info.verdict, Err(ImageError::ChecksumMismatch { .. })));
@@ -934,32 +1073,56 @@ mod tests {
         ]
     }
 
+    /// A condition on `attribute`: a threshold, or (when `linear`) a
+    /// four-state form made monotone (no and abstain coefficients at most yes).
+    fn condition(attribute: u16, total: u64, q: u64, linear: Option<(i32, i32, i32)>) -> Condition {
+        match linear {
+            None => Condition::Yes(Atom {
+                attribute,
+                quota: q % (total + 2),
+            }),
+            Some((yes, no, abstain)) => Condition::Linear(Linear {
+                attribute,
+                yes,
+                no: no.min(yes),
+                abstain: abstain.min(yes),
+                bound: i128::from(q % (total + 2)) - i128::from(total / 2),
+            }),
+        }
+    }
+
     fn rules() -> impl Strategy<Value = Rule<Vec<u64>>> {
         (1usize..=12, 1usize..=3, 1u16..=4).prop_flat_map(|(n, attributes, atoms)| {
             let weights = prop::collection::vec(weight(), n * attributes);
-            let atom = (0..attributes as u16, any::<u64>());
+            let linear = prop::option::of((0i32..4, -3i32..4, -3i32..4));
+            let atom = (0..attributes as u16, any::<u64>(), linear);
             let atoms_s = prop::collection::vec(atom, atoms as usize);
             (weights, atoms_s, trees(atoms)).prop_map(move |(w, raw_atoms, tree)| {
-                let rule_atoms: Vec<Atom> = raw_atoms
+                let conditions: Vec<Condition> = raw_atoms
                     .iter()
-                    .map(|&(attribute, q)| {
+                    .map(|&(attribute, q, linear)| {
                         let total: u64 = w[usize::from(attribute) * n..][..n].iter().sum();
-                        Atom {
-                            attribute,
-                            quota: q % (total + 2),
-                        }
+                        condition(attribute, total, q, linear)
                     })
                     .collect();
                 let mut f = Vec::new();
                 tree.postfix(&mut f);
-                Rule::new(n, w, &rule_atoms, &f).unwrap()
+                Rule::with_conditions(n, w, &conditions, &f).unwrap()
             })
         })
     }
 
+    /// A four-state ballot of `n` members, two bits a member.
+    fn ballot(n: usize, bits: u128) -> Ballot<1> {
+        let votes: Vec<Vote> = (0..n)
+            .map(|i| [Vote::Yes, Vote::No, Vote::Abstain, Vote::Absent][(bits >> (2 * i)) as usize & 3])
+            .collect();
+        Ballot::from_votes(&votes).unwrap()
+    }
+
     proptest! {
         #[test]
-        fn loaded_images_decide_like_their_source(rule in rules(), ballots in prop::collection::vec(any::<u64>(), 16)) {
+        fn loaded_images_decide_like_their_source(rule in rules(), ballots in prop::collection::vec(any::<u128>(), 16)) {
             let image = encoded(&rule);
             let mut w = vec![0u64; weights_needed(&image).unwrap()];
             let loaded = load(&image, &mut w).unwrap();
@@ -967,11 +1130,16 @@ mod tests {
             prop_assert_eq!(loaded.weight_table(), rule.weight_table());
             prop_assert_eq!(loaded.atoms(), rule.atoms());
             prop_assert_eq!(loaded.formula(), rule.formula());
+            for i in 0..rule.atoms().len() {
+                prop_assert_eq!(loaded.condition(i), rule.condition(i));
+            }
             let mask = (1u64 << rule.members()) - 1;
             for bits in ballots {
-                let yes = Coalition::<1>::from_words([bits & mask]);
+                let yes = Coalition::<1>::from_words([bits as u64 & mask]);
                 prop_assert_eq!(decide(&loaded, &yes), decide(&rule, &yes));
                 prop_assert_eq!(critical(&loaded, &yes), critical(&rule, &yes));
+                let four_state = ballot(rule.members(), bits);
+                prop_assert_eq!(decide_ballot(&loaded, &four_state), decide_ballot(&rule, &four_state));
             }
         }
 

@@ -266,6 +266,7 @@ static int test_damaged_images(void) {
         {"damaged-width.img", CLOUT_RESULT_IMAGE_WIDTH},
         {"damaged-layout.img", CLOUT_RESULT_IMAGE_LAYOUT},
         {"damaged-node-kind.img", CLOUT_RESULT_IMAGE_NODE_KIND},
+        {"damaged-condition-kind.img", CLOUT_RESULT_IMAGE_CONDITION_KIND},
         {"damaged-no-members.img", CLOUT_RESULT_NO_MEMBERS},
         {"damaged-too-many-members.img", CLOUT_RESULT_TOO_MANY_MEMBERS},
         {"damaged-too-many-attributes.img", CLOUT_RESULT_TOO_MANY_ATTRIBUTES},
@@ -277,6 +278,7 @@ static int test_damaged_images(void) {
         {"damaged-unknown-condition.img", CLOUT_RESULT_UNKNOWN_CONDITION},
         {"damaged-malformed-formula.img", CLOUT_RESULT_MALFORMED_FORMULA},
         {"damaged-empty-operator.img", CLOUT_RESULT_EMPTY_OPERATOR},
+        {"damaged-non-monotone.img", CLOUT_RESULT_NON_MONOTONE},
     };
     static uint64_t mem[CLOUT_RULE_HEADER_WORDS + 64];
     size_t n = sizeof cases / sizeof cases[0], i, j, words, written;
@@ -306,7 +308,7 @@ static int test_describe(void) {
     char text[CLOUT_DESCRIPTION_MAX], tiny[8] = "";
     size_t written = 0, untouched = 7;
     image_len = read_image("eec.img", image, sizeof image);
-    CHECK(image_len == 44);
+    CHECK(image_len == 45);
     CHECK_CODE(clout_image_check(image, image_len), CLOUT_RESULT_OK);
     CHECK_CODE(clout_image_describe(image, image_len, text, sizeof text, &written), CLOUT_RESULT_OK);
     CHECK(strstr(text, "6 members, 1 weight attributes, 1 conditions") != NULL);
@@ -431,17 +433,19 @@ static int test_messages(void) {
         CLOUT_RESULT_NOT_HEAP_RULE, CLOUT_RESULT_LENGTH_TOO_LARGE, CLOUT_RESULT_INTERNAL,
         CLOUT_RESULT_IMAGE_MAGIC, CLOUT_RESULT_IMAGE_TRUNCATED, CLOUT_RESULT_IMAGE_VERSION,
         CLOUT_RESULT_IMAGE_TRAILING_BYTES, CLOUT_RESULT_IMAGE_CHECKSUM, CLOUT_RESULT_IMAGE_WIDTH,
-        CLOUT_RESULT_IMAGE_LAYOUT, CLOUT_RESULT_IMAGE_NODE_KIND, CLOUT_RESULT_NO_MEMBERS,
+        CLOUT_RESULT_IMAGE_LAYOUT, CLOUT_RESULT_IMAGE_NODE_KIND, CLOUT_RESULT_IMAGE_CONDITION_KIND,
+        CLOUT_RESULT_NO_MEMBERS,
         CLOUT_RESULT_TOO_MANY_MEMBERS, CLOUT_RESULT_TOO_MANY_ATTRIBUTES, CLOUT_RESULT_TOO_MANY_CONDITIONS,
         CLOUT_RESULT_TOO_MANY_NODES, CLOUT_RESULT_TOO_DEEP, CLOUT_RESULT_WEIGHT_SUM_OVERFLOW,
         CLOUT_RESULT_UNKNOWN_ATTRIBUTE, CLOUT_RESULT_UNKNOWN_CONDITION, CLOUT_RESULT_MALFORMED_FORMULA,
-        CLOUT_RESULT_EMPTY_OPERATOR, CLOUT_RESULT_BALLOT_MEMBER, CLOUT_RESULT_BALLOT_DUPLICATE,
+        CLOUT_RESULT_EMPTY_OPERATOR, CLOUT_RESULT_NON_MONOTONE, CLOUT_RESULT_BALLOT_MEMBER,
+        CLOUT_RESULT_BALLOT_DUPLICATE,
         CLOUT_RESULT_POWER_CAPACITY, CLOUT_RESULT_TOO_COSTLY, CLOUT_RESULT_COUNT_OVERFLOW,
         CLOUT_RESULT_NO_ENGINE,
     };
     size_t n = sizeof all / sizeof all[0], i, j, written;
     char text[CLOUT_MESSAGE_MAX], unknown[CLOUT_MESSAGE_MAX];
-    CHECK(n == 35);
+    CHECK(n == 37);
     for (i = 0; i < n; i++) {
         for (j = 0; j < i; j++) CHECK(all[i] != all[j]);
         CHECK_CODE(clout_result_message(all[i], text, sizeof text, &written), CLOUT_RESULT_OK);
