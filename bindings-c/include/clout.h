@@ -15,6 +15,26 @@
 #include <stdint.h>
 
 /**
+ * A four-state vote: not present.
+ */
+#define CLOUT_VOTE_ABSENT 0
+
+/**
+ * A four-state vote: in favour.
+ */
+#define CLOUT_VOTE_YES 1
+
+/**
+ * A four-state vote: against.
+ */
+#define CLOUT_VOTE_NO 2
+
+/**
+ * A four-state vote: present, voting neither way.
+ */
+#define CLOUT_VOTE_ABSTAIN 3
+
+/**
  * Words reserved at the start of a rule's memory for its header; the
  * weights follow. A C program sizes static rule memory as
  * `CLOUT_RULE_HEADER_WORDS + members * attributes` `uint64_t`s.
@@ -177,6 +197,10 @@ enum clout_result
    */
   CLOUT_RESULT_BALLOT_DUPLICATE = 301,
   /**
+   * A four-state ballot holds a vote byte other than `CLOUT_VOTE_*`.
+   */
+  CLOUT_RESULT_BALLOT_VOTE = 302,
+  /**
    * Power needs a rule of at most 64 members.
    */
   CLOUT_RESULT_POWER_CAPACITY = 400,
@@ -223,6 +247,24 @@ typedef struct {
    */
   uint64_t met;
 } clout_outcome;
+
+/**
+ * One condition's attribute summed over each group of a four-state ballot.
+ */
+typedef struct {
+  /**
+   * Over the members voting yes.
+   */
+  uint64_t yes;
+  /**
+   * Over the members voting no.
+   */
+  uint64_t no;
+  /**
+   * Over the members abstaining.
+   */
+  uint64_t abstain;
+} clout_group_sums;
 
 /**
  * Sizes of a loaded rule.
@@ -275,6 +317,20 @@ clout_result clout_decide_members(const clout_rule *rule,
                                   uint64_t *sums,
                                   size_t sums_len,
                                   clout_outcome *outcome);
+
+/**
+ * Decides a four-state ballot: `votes_len` (= members) vote bytes at
+ * `votes`, each `CLOUT_VOTE_ABSENT`, `_YES`, `_NO` or `_ABSTAIN`. Threshold
+ * conditions count the yes-sum; four-state (linear) conditions weigh the
+ * yes, no and abstain sums. Writes each condition's group sums into `sums`
+ * (`sums_len >= conditions`) and the outcome into `*outcome`. No heap.
+ */
+clout_result clout_decide_votes(const clout_rule *rule,
+                                const uint8_t *votes,
+                                size_t votes_len,
+                                clout_group_sums *sums,
+                                size_t sums_len,
+                                clout_outcome *outcome);
 
 /**
  * Lists the critical members of a bit-array ballot (as for

@@ -1,19 +1,21 @@
 //! Deciding ballots: outcome, per-condition sums, critical members.
 //!
-//! A ballot is a bit array of `uint64_t` words (member i at bit i % 64 of
-//! word i / 64) or a list of member indices. Rules of up to 64 members use a
+//! A two-state ballot (yes, or else no) is a bit array of `uint64_t` words
+//! (member i at bit i % 64 of word i / 64) or a list of member indices; a
+//! four-state ballot is one vote byte a member (`CLOUT_VOTE_*`). Rules of up to 64 members use a
 //! one-word ballot; larger ones a 1,024-word ballot (8 KiB). Each width has
 //! its own out-of-line path, built in place, so a one-word decision never
 //! reserves stack for a wide ballot. Nothing allocates.
 //!
-//! The outcome is the core's own evaluation: the yes-sums of
+//! The outcome is the core's own evaluation: for two states the yes-sums of
 //! `Rule::yes_sums` and the formula of `Rule::passes_with_sums`, which is
-//! what `Rule::passes` and `decide` compute (a test compares them).
+//! what `Rule::passes` and `decide` compute (a test compares them); for four
+//! states the core's `decide_ballot`.
 
 use core::mem::MaybeUninit;
 
 use clout_core::limits::MAX_ATTRIBUTES;
-use clout_core::{critical as critical_of, Coalition};
+use clout_core::{critical as critical_of, decide_ballot, Ballot as FourState, Coalition, Vote};
 
 use crate::ffi::{self, clout_rule, LoadedRule};
 use crate::status::clout_result;
@@ -28,6 +30,27 @@ pub struct clout_outcome {
     pub conditions: u32,
     /// Bit k is set when condition k is met.
     pub met: u64,
+}
+
+/// A four-state vote: not present.
+pub const CLOUT_VOTE_ABSENT: u8 = 0;
+/// A four-state vote: in favour.
+pub const CLOUT_VOTE_YES: u8 = 1;
+/// A four-state vote: against.
+pub const CLOUT_VOTE_NO: u8 = 2;
+/// A four-state vote: present, voting neither way.
+pub const CLOUT_VOTE_ABSTAIN: u8 = 3;
+
+/// One condition's attribute summed over each group of a four-state ballot.
+#[repr(C)]
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct clout_group_sums {
+    /// Over the members voting yes.
+    pub yes: u64,
+    /// Over the members voting no.
+    pub no: u64,
+    /// Over the members abstaining.
+    pub abstain: u64,
 }
 
 /// Words in the ballot of a rule too large for one word (65,536 members).
@@ -74,9 +97,7 @@ fn fill_from_words<const B: usize>(
             }
         }
     }
-    if ballot.has_member_at_or_beyond(rule.members()) {
-        return Err(clout_result::BallotMember);
-    }
+    // Bits at or beyond the member count: Rule::yes_sums refuses them.
     Ok(())
 }
 
@@ -192,6 +213,75 @@ pub extern "C" fn clout_decide_members(
 ) -> clout_result {
     let ballot = || Ok(Ballot::List(ffi::input(yes, yes_len)?));
     decide_export(rule, ballot, sums, sums_len, outcome)
+}
+
+/// Decides a four-state ballot: `votes_len` (= members) vote bytes at
+/// `votes`, each `CLOUT_VOTE_ABSENT`, `_YES`, `_NO` or `_ABSTAIN`. Threshold
+/// conditions count the yes-sum; four-state (linear) conditions weigh the
+/// yes, no and abstain sums. Writes each condition's group sums into `sums`
+/// (`sums_len >= conditions`) and the outcome into `*outcome`. No heap.
+#[no_mangle]
+pub extern "C" fn clout_decide_votes(
+    rule: *const clout_rule,
+    votes: *const u8,
+    votes_len: usize,
+    sums: *mut clout_group_sums,
+    sums_len: usize,
+    outcome: *mut clout_outcome,
+) -> clout_result {
+    ffi::guard(|| {
+        let rule = ffi::rule(rule)?;
+        let votes = ffi::input(votes, votes_len)?;
+        let sums = ffi::output(sums, sums_len)?;
+        let outcome = ffi::out_param(outcome)?;
+        if votes.len() < rule.members() || sums.len() < rule.atoms().len() {
+            return Err(clout_result::BufferTooSmall);
+        }
+        if votes.len() > rule.members() {
+            return Err(clout_result::BallotMember);
+        }
+        if rule.members() <= 64 {
+            decide_votes_with::<1>(rule, votes, sums, outcome)
+        } else {
+            decide_votes_with::<WIDE>(rule, votes, sums, outcome)
+        }
+    })
+}
+
+#[inline(never)]
+fn decide_votes_with<const B: usize>(
+    rule: &LoadedRule,
+    votes: &[u8],
+    sums: &mut [MaybeUninit<clout_group_sums>],
+    outcome: &mut MaybeUninit<clout_outcome>,
+) -> Result<(), clout_result> {
+    let mut ballot = FourState::<B>::EMPTY;
+    for (i, &v) in votes.iter().enumerate() {
+        let vote = match v {
+            CLOUT_VOTE_ABSENT => Vote::Absent,
+            CLOUT_VOTE_YES => Vote::Yes,
+            CLOUT_VOTE_NO => Vote::No,
+            CLOUT_VOTE_ABSTAIN => Vote::Abstain,
+            _ => return Err(clout_result::BallotVote),
+        };
+        ballot.set(i, vote)?;
+    }
+    let decision = decide_ballot(rule, &ballot)?;
+    let mut met = 0u64;
+    for (k, (slot, t)) in sums.iter_mut().zip(decision.tallies.iter()).enumerate() {
+        slot.write(clout_group_sums {
+            yes: t.sum,
+            no: t.no,
+            abstain: t.abstain,
+        });
+        met |= u64::from(t.met) << k;
+    }
+    outcome.write(clout_outcome {
+        passed: decision.passed,
+        conditions: ffi::count_u32(decision.tallies.len()),
+        met,
+    });
+    Ok(())
 }
 
 /// Lists the critical members of a bit-array ballot (as for

@@ -41,7 +41,10 @@ mod power;
 mod rule;
 mod status;
 
-pub use ballot::{clout_critical, clout_decide, clout_decide_members, clout_outcome};
+pub use ballot::{
+    clout_critical, clout_decide, clout_decide_members, clout_decide_votes, clout_group_sums, clout_outcome,
+    CLOUT_VOTE_ABSENT, CLOUT_VOTE_ABSTAIN, CLOUT_VOTE_NO, CLOUT_VOTE_YES,
+};
 pub use ffi::{clout_rule, CLOUT_RULE_HEADER_WORDS};
 pub use power::{clout_power, CLOUT_POWER_MAX_MEMBERS};
 pub use rule::{

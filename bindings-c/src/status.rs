@@ -84,6 +84,8 @@ pub enum clout_result {
     BallotMember = 300,
     /// A ballot lists a member twice.
     BallotDuplicate = 301,
+    /// A four-state ballot holds a vote byte other than `CLOUT_VOTE_*`.
+    BallotVote = 302,
     /// Power needs a rule of at most 64 members.
     PowerCapacity = 400,
     /// The exact computation would take too long.
@@ -96,7 +98,7 @@ pub enum clout_result {
 
 impl clout_result {
     /// Every code, in value order.
-    pub const ALL: [clout_result; 37] = {
+    pub const ALL: [clout_result; 38] = {
         use clout_result::*;
         [
             Ok,
@@ -132,6 +134,7 @@ impl clout_result {
             NonMonotone,
             BallotMember,
             BallotDuplicate,
+            BallotVote,
             PowerCapacity,
             TooCostly,
             CountOverflow,
@@ -183,6 +186,7 @@ impl clout_result {
             NonMonotone => "a four-state condition is not monotone: a vote for could defeat the motion",
             BallotMember => "the ballot names a member the rule does not have",
             BallotDuplicate => "the ballot lists a member twice",
+            BallotVote => "the ballot holds a vote other than absent, yes, no or abstain",
             PowerCapacity => "power indices need a rule of at most 64 members",
             TooCostly => "the exact computation would take too long",
             CountOverflow => "an exact count does not fit in the count type",

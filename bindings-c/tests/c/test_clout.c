@@ -189,6 +189,42 @@ static int test_compound_rule_sums(void) {
     return 1;
 }
 
+/* A fictional majority of those present: more yes than no (Y - N >= 1) over
+ * weights 2, 1, 1, as a four-state condition. By hand: yes 2, no 1, abstain 1
+ * gives 2 - 1 >= 1 (passes); no 2 against yes 2 gives 0 (fails); yes 2 with
+ * the rest absent gives 2 (passes). As a two-state ballot member 0 alone
+ * faces 2 against (fails), which is what clout_decide reports. */
+static int test_four_state_votes(void) {
+    static const uint8_t split[3] = {CLOUT_VOTE_YES, CLOUT_VOTE_NO, CLOUT_VOTE_ABSTAIN};
+    static const uint8_t tied[3] = {CLOUT_VOTE_NO, CLOUT_VOTE_YES, CLOUT_VOTE_YES};
+    static const uint8_t alone[3] = {CLOUT_VOTE_YES, CLOUT_VOTE_ABSENT, CLOUT_VOTE_ABSENT};
+    static const uint8_t bad[3] = {CLOUT_VOTE_YES, 7, CLOUT_VOTE_NO};
+    static const uint8_t four[4] = {CLOUT_VOTE_YES, CLOUT_VOTE_NO, CLOUT_VOTE_NO, CLOUT_VOTE_NO};
+    clout_group_sums sums[1];
+    uint64_t yes = 1, binary[1];
+    clout_outcome out;
+    clout_rule *rule = load("present.img");
+    CHECK(rule != NULL);
+    CHECK_CODE(clout_decide_votes(rule, split, 3, sums, 1, &out), CLOUT_RESULT_OK);
+    CHECK(out.passed && out.met == 1 && sums[0].yes == 2 && sums[0].no == 1 && sums[0].abstain == 1);
+    CHECK_CODE(clout_decide_votes(rule, tied, 3, sums, 1, &out), CLOUT_RESULT_OK);
+    CHECK(!out.passed && sums[0].yes == 2 && sums[0].no == 2 && sums[0].abstain == 0);
+    CHECK_CODE(clout_decide_votes(rule, alone, 3, sums, 1, &out), CLOUT_RESULT_OK);
+    CHECK(out.passed && sums[0].yes == 2 && sums[0].no == 0);
+    CHECK_CODE(clout_decide(rule, &yes, 1, binary, 1, &out), CLOUT_RESULT_OK);
+    CHECK(!out.passed && binary[0] == 2);
+    CHECK_CODE(clout_decide_votes(rule, bad, 3, sums, 1, &out), CLOUT_RESULT_BALLOT_VOTE);
+    CHECK_CODE(clout_decide_votes(rule, split, 2, sums, 1, &out), CLOUT_RESULT_BUFFER_TOO_SMALL);
+    CHECK_CODE(clout_decide_votes(rule, four, 4, sums, 1, &out), CLOUT_RESULT_BALLOT_MEMBER);
+    CHECK_CODE(clout_decide_votes(rule, split, 3, sums, 0, &out), CLOUT_RESULT_BUFFER_TOO_SMALL);
+    CHECK_CODE(clout_decide_votes(NULL, split, 3, sums, 1, &out), CLOUT_RESULT_NULL_ARGUMENT);
+    CHECK_CODE(clout_decide_votes(rule, NULL, 3, sums, 1, &out), CLOUT_RESULT_NULL_ARGUMENT);
+    CHECK_CODE(clout_decide_votes(rule, split, 3, NULL, 1, &out), CLOUT_RESULT_NULL_ARGUMENT);
+    CHECK_CODE(clout_decide_votes(rule, split, 3, sums, 1, NULL), CLOUT_RESULT_NULL_ARGUMENT);
+    CHECK_CODE(clout_rule_free(rule), CLOUT_RESULT_OK);
+    return 1;
+}
+
 /* The no-heap path: rule memory is a static array sized by the header's
  * constant; such a rule cannot be passed to clout_rule_free. */
 static int test_caller_memory(void) {
@@ -439,13 +475,13 @@ static int test_messages(void) {
         CLOUT_RESULT_TOO_MANY_NODES, CLOUT_RESULT_TOO_DEEP, CLOUT_RESULT_WEIGHT_SUM_OVERFLOW,
         CLOUT_RESULT_UNKNOWN_ATTRIBUTE, CLOUT_RESULT_UNKNOWN_CONDITION, CLOUT_RESULT_MALFORMED_FORMULA,
         CLOUT_RESULT_EMPTY_OPERATOR, CLOUT_RESULT_NON_MONOTONE, CLOUT_RESULT_BALLOT_MEMBER,
-        CLOUT_RESULT_BALLOT_DUPLICATE,
-        CLOUT_RESULT_POWER_CAPACITY, CLOUT_RESULT_TOO_COSTLY, CLOUT_RESULT_COUNT_OVERFLOW,
+        CLOUT_RESULT_BALLOT_DUPLICATE, CLOUT_RESULT_BALLOT_VOTE, CLOUT_RESULT_POWER_CAPACITY,
+        CLOUT_RESULT_TOO_COSTLY, CLOUT_RESULT_COUNT_OVERFLOW,
         CLOUT_RESULT_NO_ENGINE,
     };
     size_t n = sizeof all / sizeof all[0], i, j, written;
     char text[CLOUT_MESSAGE_MAX], unknown[CLOUT_MESSAGE_MAX];
-    CHECK(n == 37);
+    CHECK(n == 38);
     for (i = 0; i < n; i++) {
         for (j = 0; j < i; j++) CHECK(all[i] != all[j]);
         CHECK_CODE(clout_result_message(all[i], text, sizeof text, &written), CLOUT_RESULT_OK);
@@ -527,6 +563,7 @@ int main(int argc, char **argv) {
         {"test_eec_decide", test_eec_decide},
         {"test_eec_critical", test_eec_critical},
         {"test_compound_rule_sums", test_compound_rule_sums},
+        {"test_four_state_votes", test_four_state_votes},
         {"test_caller_memory", test_caller_memory},
         {"test_wide_rule", test_wide_rule},
         {"test_too_costly", test_too_costly},
