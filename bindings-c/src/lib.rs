@@ -27,7 +27,7 @@
 //! * A loaded rule is read-only: any number of threads may decide with it
 //!   at once.
 //!
-//! All raw pointers and casts live in [`ffi`]; the other modules hold no
+//! All raw pointers and casts live in `src/ffi.rs`; the other modules hold no
 //! `unsafe` (a test checks this).
 
 #![allow(non_camel_case_types)] // C names: clout_rule, clout_result, ...
