@@ -460,6 +460,19 @@ fn bad_input_exits_2_with_a_message() {
 }
 
 #[test]
+fn work_over_the_budget_is_refused_at_once() {
+    // 20,000 members need counts of 65,600 bits; the estimate includes that width.
+    let run = clout_with_input(&["report", "-"], "members m x20000\nrule r = count > 1/2\n");
+    assert_eq!(run.code, 2);
+    assert!(
+        run.stderr.contains("over the budget of 50000000000"),
+        "{}",
+        run.stderr
+    );
+    assert!(run.stderr.contains("hint: raise the limit with --budget STEPS"));
+}
+
+#[test]
 fn help_and_version_exit_0() {
     let help = clout(&["--help"]);
     assert_eq!(help.code, 0);

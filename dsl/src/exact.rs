@@ -1,9 +1,10 @@
 //! One exact analysis of a compiled rule, flattened for front ends.
 //!
 //! Calls the core's engines ([`clout_core::analyze_with`]) with a count type
-//! wide enough for the member count (1024 bits up to 1,023 members, 4096 up
-//! to 4,095, 65,600 beyond), so no count can overflow; turns exact counts
-//! into decimal strings and indices into `f64`. When the planner's cheapest
+//! of at least n + 64 bits (1024 bits up to 960 members, 4096 up to 4,032,
+//! 65,600 beyond): counts reach 2^n and the engines' intermediates n + log2 n
+//! bits, so no count can overflow. Turns exact counts into decimal strings
+//! and indices into `f64`. When the planner's cheapest
 //! engine does not compute minimal winning coalitions (the dense engine),
 //! an engine that does is preferred if it costs at most 8 times as much (or
 //! under 10^8 steps) and fits the budget, so that the Johnston,
@@ -73,9 +74,39 @@ pub struct Power {
     pub decisive: bool,
 }
 
-/// The planner's choice, preferring an engine that computes minimal coalitions.
+/// 64-bit limbs of the count type used for `members` members.
+pub fn limbs_for(members: usize) -> usize {
+    match members + 64 {
+        0..=1024 => 16,
+        1025..=4096 => 64,
+        _ => 1025,
+    }
+}
+
+/// The core's cost estimate for `engine` plus the share of wide arithmetic it
+/// leaves out: turning per-member counts into indices is about n^2
+/// multiplications of counts of L = [`limbs_for`]`(n)` limbs, each about
+/// L^2 / 16 steps (measured on one core: 4,032 members of one type take 4 s,
+/// 4,033 members, in 1025-limb counts, 2 minutes).
+pub fn estimate<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<u128, Error> {
+    let n = rule.members() as u128;
+    let limbs = limbs_for(rule.members()) as u128;
+    let wide = n * n * limbs * limbs / 16;
+    Ok(clout_core::engine::cost(rule, engine)?.saturating_add(wide))
+}
+
+/// The planner's choice, preferring an engine that computes minimal
+/// coalitions; its cost is [`estimate`]'s, and over `budget` is
+/// [`Error::TooCostly`].
 pub fn choose<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Error> {
     let mut plan = planner::plan(rule, budget)?;
+    plan.cost = estimate(rule, plan.engine)?;
+    if plan.cost > budget {
+        return Err(Error::TooCostly {
+            estimate: plan.cost,
+            budget,
+        });
+    }
     if plan.engine.computes_minimal() {
         return Ok(plan);
     }
@@ -83,8 +114,8 @@ pub fn choose<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Err
     let better = plan
         .costs
         .iter()
-        .filter(|(e, _)| e.computes_minimal())
-        .filter_map(|&(e, c)| Some((e, c?)))
+        .filter(|(e, c)| e.computes_minimal() && c.is_some())
+        .filter_map(|&(e, _)| Some((e, estimate(rule, e).ok()?)))
         .filter(|&(_, c)| c <= acceptable)
         .min_by_key(|&(_, c)| c);
     if let Some((engine, cost)) = better {
@@ -96,13 +127,10 @@ pub fn choose<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Err
 
 /// Counts `rule` exactly with `engine` (see [`choose`]).
 pub fn power<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<Power, Error> {
-    let n = rule.members();
-    if n < 1024 {
-        power_in::<_, Wide<16>>(rule, engine)
-    } else if n < 4096 {
-        power_in::<_, Wide<64>>(rule, engine)
-    } else {
-        power_in::<_, Wide<1025>>(rule, engine)
+    match limbs_for(rule.members()) {
+        16 => power_in::<_, Wide<16>>(rule, engine),
+        64 => power_in::<_, Wide<64>>(rule, engine),
+        _ => power_in::<_, Wide<1025>>(rule, engine),
     }
 }
 

@@ -7,7 +7,7 @@
 //! names two disjoint passing coalitions, found by enumeration
 //! (O(2^n * (n + nodes))) and shrunk to minimal ones.
 
-use clout_core::{planner, Coalition, Error, Rule};
+use clout_core::{Coalition, Error, Rule};
 
 use crate::compile::{CompiledRule, RuleFile};
 use crate::diagnostic::Diagnostic;
@@ -25,7 +25,7 @@ pub fn lint(file: &RuleFile, budget: u128) -> Vec<Diagnostic> {
 }
 
 fn lint_rule(file: &RuleFile, r: &CompiledRule, budget: u128) -> Vec<Diagnostic> {
-    let power = match planner::plan(&r.rule, budget).and_then(|p| exact::power(&r.rule, p.engine)) {
+    let power = match exact::choose(&r.rule, budget).and_then(|p| exact::power(&r.rule, p.engine)) {
         Ok(p) => p,
         Err(e) => {
             let why = match e {

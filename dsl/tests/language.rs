@@ -457,3 +457,34 @@ proptest! {
         prop_assert_eq!(once, again);
     }
 }
+
+/// `2^k` as a decimal string, by doubling digit strings.
+fn power_of_two(k: u32) -> String {
+    let mut digits = vec![1u8];
+    for _ in 0..k {
+        let mut carry = 0;
+        for d in digits.iter_mut() {
+            let v = *d * 2 + carry;
+            *d = v % 10;
+            carry = v / 10;
+        }
+        if carry > 0 {
+            digits.push(carry);
+        }
+    }
+    digits.iter().rev().map(|d| char::from(b'0' + d)).collect()
+}
+
+#[test]
+fn counts_near_the_width_of_the_count_type_do_not_overflow() {
+    // 1,023 equal members, more than half: by symmetry exactly half of the 2^1023
+    // coalitions win, and every member has banzhaf 1/1023. Counts of 1024 bits
+    // would overflow in intermediates of n + log2 n bits.
+    let p = exact_of("members m x1023\nrule r = count > 1/2");
+    assert_eq!(p.winning, power_of_two(1022));
+    assert!((p.members[0].banzhaf - 1.0 / 1023.0).abs() < 1e-12);
+    assert_eq!(p.members[0].swings, p.members[1022].swings);
+    assert_eq!(exact::limbs_for(960), 16);
+    assert_eq!(exact::limbs_for(961), 64);
+    assert_eq!(exact::limbs_for(65_535), 1025);
+}

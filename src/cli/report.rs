@@ -65,8 +65,8 @@ pub fn analyse(rule: &CompiledRule, forced: Option<clout::Engine>, budget: u128)
 fn core_failure(rule: &CompiledRule, err: clout::Error) -> Failure {
     let hint = match err {
         clout::Error::TooCostly { .. } => {
-            "\n  = hint: raise the limit with --budget STEPS, or group members with identical weights \
-             (`members NAME xK`) so that the profile engine applies"
+            "\n  = hint: raise the limit with --budget STEPS (5e10 steps take about a minute); \
+             members with identical weights (`members NAME xK`) make exact counting much cheaper"
         }
         clout::Error::EngineUnsuitable { .. } => "\n  = hint: leave out --engine to let the planner choose",
         _ => "",
