@@ -488,3 +488,99 @@ fn counts_near_the_width_of_the_count_type_do_not_overflow() {
     assert_eq!(exact::limbs_for(961), 64);
     assert_eq!(exact::limbs_for(65_535), 1025);
 }
+
+const EXAMPLES: [&str; 5] = [
+    TRANSIT,
+    TWO_CHAMBER,
+    include_str!("../../examples/council.clout"),
+    include_str!("../../examples/compact.clout"),
+    include_str!("../../examples/cooperative.clout"),
+];
+
+/// An example file with bytes replaced, inserted or deleted at random places.
+fn mutated() -> impl Strategy<Value = String> {
+    let edits = prop::collection::vec(
+        (
+            any::<prop::sample::Index>(),
+            0u8..3,
+            prop::sample::select(vec![
+                "(",
+                ")",
+                " and ",
+                " or ",
+                "#",
+                "\n",
+                "x0",
+                "99999999999999999999",
+                "%",
+                "/0",
+                "<",
+                "against",
+                "=",
+                ",",
+                "\"",
+                "é",
+                "[",
+                "]",
+                ";",
+                "of",
+                "not ",
+            ]),
+        ),
+        1..6,
+    );
+    (prop::sample::select(EXAMPLES.to_vec()), edits).prop_map(|(source, edits)| {
+        let mut s = source.to_string();
+        for (at, kind, text) in edits {
+            let mut i = at.index(s.len() + 1);
+            while !s.is_char_boundary(i) {
+                i -= 1;
+            }
+            match kind {
+                0 => s.insert_str(i, text),
+                1 => {
+                    let mut j = (i + text.len()).min(s.len());
+                    while !s.is_char_boundary(j) {
+                        j -= 1;
+                    }
+                    s.replace_range(i..j, text);
+                }
+                _ => {
+                    let mut j = (i + 3).min(s.len());
+                    while !s.is_char_boundary(j) {
+                        j -= 1;
+                    }
+                    s.replace_range(i..j, "");
+                }
+            }
+        }
+        s
+    })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+
+    /// Damaged files compile or fail with positioned errors; they never panic.
+    #[test]
+    fn damaged_files_never_panic(source in mutated()) {
+        match compile(&source) {
+            Ok(file) => prop_assert!(!file.rules.is_empty()),
+            Err(errors) => {
+                prop_assert!(!errors.is_empty());
+                let text = clout_dsl::render_all(&errors, "f", &source);
+                prop_assert!(text.starts_with("f:"));
+                for e in &errors {
+                    prop_assert!(e.span.start <= source.len());
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn arbitrary_text_never_panics(source in "\\PC{0,200}") {
+        if let Err(errors) = compile(&source) {
+            let _ = clout_dsl::render_all(&errors, "f", &source);
+        }
+    }
+}
