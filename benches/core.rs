@@ -36,6 +36,19 @@ fn decide_27(c: &mut Criterion) {
             black_box(rule.passes(black_box(&ballots[i])).unwrap())
         })
     });
+    let mut tallies = [clout::AtomTally {
+        sum: 0,
+        quota: 0,
+        met: false,
+        no: 0,
+        abstain: 0,
+    }; 8];
+    c.bench_function("decide-27/decide-into-caller-tallies", |b| {
+        b.iter(|| {
+            i = (i + 1) & 1023;
+            black_box(clout::decide_into(&rule, black_box(&ballots[i]), &mut tallies).unwrap())
+        })
+    });
     c.bench_function("decide-27/decide-with-tallies", |b| {
         b.iter(|| {
             i = (i + 1) & 1023;

@@ -22,11 +22,18 @@ pub struct AtomTally {
     pub no: u64,
     /// Sum over the abstainers.
     pub abstain: u64,
-    /// Left-hand side of the condition: the yes-sum for a plain threshold,
-    /// `yes*Y + no*N + abstain*A` for a [`crate::Linear`] form.
-    pub lhs: i128,
-    /// Right-hand side: the quota, or the linear form's bound.
-    pub rhs: i128,
+}
+
+impl AtomTally {
+    /// Left and right sides of atom `i`'s condition: the yes-sum and the
+    /// quota for a plain threshold, `yes*Y + no*N + abstain*A` and the bound
+    /// for a [`crate::Linear`] form.
+    pub fn sides<W: AsRef<[u64]>>(&self, rule: &Rule<W>, i: usize) -> (i128, i128) {
+        match rule.linear(i) {
+            Some(l) => (l.lhs(self.sum, self.no, self.abstain), l.bound),
+            None => (i128::from(self.sum), i128::from(self.quota)),
+        }
+    }
 }
 
 /// The outcome of one vote.
@@ -38,38 +45,59 @@ pub struct Decision {
     pub tallies: heapless::Vec<AtomTally, MAX_ATOMS>,
 }
 
-/// Decides the ballot `yes` under `rule`.
+/// Decides the ballot `yes` under `rule` (two states: everyone not voting
+/// yes votes no).
 pub fn decide<W: AsRef<[u64]>, const B: usize>(
     rule: &Rule<W>,
     yes: &Coalition<B>,
 ) -> Result<Decision, Error> {
-    let mut sums = [0u64; MAX_ATTRIBUTES];
-    rule.yes_sums(yes, &mut sums)?;
     let mut tallies = heapless::Vec::new();
-    for (i, atom) in rule.atoms().iter().enumerate() {
-        let a = usize::from(atom.attribute);
-        let sum = sums.get(a).copied().unwrap_or(0);
-        // Two states: everyone present, everyone not voting yes votes no.
-        let no = rule.total(a).saturating_sub(sum);
-        let (lhs, rhs) = match rule.linear(i) {
-            Some(l) => (l.lhs(sum, no, 0), l.bound),
-            None => (i128::from(sum), i128::from(atom.quota)),
-        };
-        // The binary quota is exact for linear forms too (Linear::binary_quota).
-        let met = sum >= atom.quota;
-        // Capacity equals MAX_ATOMS, which bounds rule.atoms().
-        let _ = tallies.push(AtomTally {
-            sum,
-            quota: atom.quota,
-            met,
-            no,
-            abstain: 0,
-            lhs,
-            rhs,
+    let empty = AtomTally {
+        sum: 0,
+        quota: 0,
+        met: false,
+        no: 0,
+        abstain: 0,
+    };
+    // Capacity equals MAX_ATOMS, which bounds rule.atoms().
+    for _ in rule.atoms() {
+        let _ = tallies.push(empty);
+    }
+    let passed = decide_into(rule, yes, &mut tallies)?;
+    Ok(Decision { passed, tallies })
+}
+
+/// [`decide`] writing one tally per atom into a caller slice (at least as
+/// long as the rule's atoms); the device path, with nothing to copy back.
+pub fn decide_into<W: AsRef<[u64]>, const B: usize>(
+    rule: &Rule<W>,
+    yes: &Coalition<B>,
+    out: &mut [AtomTally],
+) -> Result<bool, Error> {
+    let atoms = rule.atoms();
+    if out.len() < atoms.len() {
+        return Err(Error::ScratchTooSmall {
+            needed: atoms.len(),
+            given: out.len(),
         });
     }
-    let passed = rule.eval(|i| tallies.get(i).is_some_and(|t| t.met));
-    Ok(Decision { passed, tallies })
+    let mut sums = [0u64; MAX_ATTRIBUTES];
+    rule.yes_sums(yes, &mut sums)?;
+    for (atom, slot) in atoms.iter().zip(out.iter_mut()) {
+        let a = usize::from(atom.attribute);
+        let sum = sums.get(a).copied().unwrap_or(0);
+        // Two states: everyone present; the binary quota is exact for
+        // linear forms too (Linear::binary_quota).
+        let no = rule.total(a).saturating_sub(sum);
+        *slot = AtomTally {
+            sum,
+            quota: atom.quota,
+            met: sum >= atom.quota,
+            no,
+            abstain: 0,
+        };
+    }
+    Ok(rule.eval(|i| out.get(i).is_some_and(|t| t.met)))
 }
 
 /// Decides a four-state ballot: yes, no, abstain, absent.
@@ -91,9 +119,9 @@ pub fn decide_ballot<W: AsRef<[u64]>, const B: usize>(
     for (i, atom) in rule.atoms().iter().enumerate() {
         let a = usize::from(atom.attribute);
         let (y, n, ab) = (yes[a], no[a], abstain[a]);
-        let (met, lhs, rhs) = match rule.linear(i) {
-            Some(l) => (l.holds(y, n, ab), l.lhs(y, n, ab), l.bound),
-            None => (y >= atom.quota, i128::from(y), i128::from(atom.quota)),
+        let met = match rule.linear(i) {
+            Some(l) => l.holds(y, n, ab),
+            None => y >= atom.quota,
         };
         let _ = tallies.push(AtomTally {
             sum: y,
@@ -101,8 +129,6 @@ pub fn decide_ballot<W: AsRef<[u64]>, const B: usize>(
             met,
             no: n,
             abstain: ab,
-            lhs,
-            rhs,
         });
     }
     let passed = rule.eval(|i| tallies.get(i).is_some_and(|t| t.met));

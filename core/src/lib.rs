@@ -94,7 +94,7 @@ pub mod ternary;
 pub use ballot::{Ballot, Vote};
 pub use coalition::{Coalition, Members};
 pub use count::{Count1024, Counter, Wide};
-pub use decide::{critical, decide, decide_ballot, AtomTally, Decision};
+pub use decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
 pub use engine::Engine;
 pub use error::Error;
 pub use image::{ImageError, ImageInfo};

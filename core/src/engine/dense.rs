@@ -502,7 +502,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     Ok(out)
 }
 
-#[cfg(test)]
+#[cfg(all(test, feature = "alloc"))]
 mod tests {
     use crate::analysis::{analyze_opts, analyze_with, Options};
     use crate::engine::Scope;
