@@ -337,6 +337,9 @@ fn decide_reports_outcome_tallies_and_critical_members() {
     let mut expected = vec!["ferry".to_string()];
     expected.extend((4..=12).map(|k| format!("delegate{k}")));
     assert_eq!(critical, expected);
+    assert_eq!(d["conditions"][0]["text"], "seats >= 2/3");
+    assert_eq!(d["conditions"][0]["attribute"], "seats");
+    assert_eq!(d["conditions"][0]["met"], false);
     assert_eq!(d["conditions"][0]["sum"], "19");
     assert_eq!(d["conditions"][0]["quota"], "20");
 

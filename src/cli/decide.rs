@@ -45,7 +45,7 @@ pub fn run(args: &DecideArgs) -> Result<Outcome, Failure> {
         .zip(&decision.tallies)
         .zip(rule.rule.atoms())
         .map(|((c, t), atom)| Tally {
-            condition: c.text.clone(),
+            text: c.text.clone(),
             attribute: rule.attributes[usize::from(atom.attribute)].name.clone(),
             sum: t.sum.to_string(),
             quota: t.quota.to_string(),
@@ -92,7 +92,7 @@ fn members(file: &RuleFile, name: &str, option: &str) -> Result<Vec<usize>, Fail
 
 #[derive(Serialize)]
 struct Tally {
-    condition: String,
+    text: String,
     attribute: String,
     sum: String,
     quota: String,
@@ -138,13 +138,17 @@ fn text_decision(
         ("met".to_string(), Align::Left),
     ]);
     for t in tallies {
-        let attribute = if t.condition.starts_with(&t.attribute) {
+        let named = t
+            .text
+            .split(|c: char| !(c.is_alphanumeric() || c == '_'))
+            .any(|w| w == t.attribute);
+        let attribute = if named {
             String::new()
         } else {
             format!(" ({})", t.attribute)
         };
         table.push(vec![
-            format!("{}{attribute}", t.condition),
+            format!("{}{attribute}", t.text),
             text::thousands(&t.sum),
             text::thousands(&t.quota),
             text::thousands(&t.total),
