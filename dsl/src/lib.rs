@@ -19,10 +19,11 @@
 //! ```
 //!
 //! Pipeline, one module each: [`syntax`] (pest grammar, tree with spans) ->
-//! [`compile`] (names, exact quotas, lowering to the IR) -> [`lint`]
-//! (warnings that need the core's counts: dummies, improper rules). [`print`]
-//! writes a rule back as text that compiles to the same rule. Errors are
-//! [`Diagnostic`]s; pest's types never leave the crate.
+//! [`mod@compile`] (names, exact quotas, lowering to the IR) -> [`mod@lint`]
+//! (warnings that need the core's counts: dummies, improper rules). [`mod@print`]
+//! writes a rule back as text that compiles to the same rule; [`exact`] runs
+//! one exact analysis with a count type wide enough for the member count.
+//! Errors are [`Diagnostic`]s; pest's types never leave the crate.
 //!
 //! | step | time |
 //! | --- | --- |

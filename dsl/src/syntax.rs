@@ -767,12 +767,19 @@ fn token_at(source: &str, at: usize) -> &str {
 fn describe(kind: G) -> Option<&'static str> {
     Some(match kind {
         G::EOI => "the end of the file",
-        G::declaration | G::title | G::member | G::group | G::bloc | G::define | G::rule => {
-            "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)"
-        }
-        G::kw_title | G::kw_member | G::kw_members | G::kw_bloc | G::kw_define | G::kw_rule => {
-            "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)"
-        }
+        G::declaration
+        | G::title
+        | G::member
+        | G::group
+        | G::bloc
+        | G::define
+        | G::rule
+        | G::kw_title
+        | G::kw_member
+        | G::kw_members
+        | G::kw_bloc
+        | G::kw_define
+        | G::kw_rule => "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)",
         G::game => "`[`",
         G::close => "`)`",
         G::comma => "`,`",
@@ -805,8 +812,19 @@ fn hint_for(kind: G) -> Option<(u8, &'static str)> {
             (0, "the notation is `[q; w1, w2, ...]`, with `w xK` for K members of weight w")
         }
         G::close => (1, "every `(` needs its `)`"),
-        G::declaration | G::title | G::member | G::group | G::bloc | G::define | G::rule => (2, declaration),
-        G::kw_title | G::kw_member | G::kw_members | G::kw_bloc | G::kw_define | G::kw_rule => (2, declaration),
+        G::declaration
+        | G::title
+        | G::member
+        | G::group
+        | G::bloc
+        | G::define
+        | G::rule
+        | G::kw_title
+        | G::kw_member
+        | G::kw_members
+        | G::kw_bloc
+        | G::kw_define
+        | G::kw_rule => (2, declaration),
         G::expr | G::any_of | G::all_of | G::condition | G::k_of | G::reference => (
             3,
             "a condition is `ATTRIBUTE >= AMOUNT`, `K of BLOC`, a member or bloc name, or conditions joined by `and` / `or`",

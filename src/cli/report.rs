@@ -215,7 +215,7 @@ fn text_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
         );
         line(if k == 0 { "conditions" } else { "" }, v);
     }
-    line("members", n.to_string());
+    line("members", text::thousands(&n.to_string()));
     line(
         "winning coalitions",
         format!("{} of {coalitions}", text::count(&power.winning)),
@@ -262,7 +262,7 @@ fn text_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
         "smallest winning coalition",
         match power.smallest_winning {
             Some(1) => "1 member".to_string(),
-            Some(k) => format!("{k} members"),
+            Some(k) => format!("{} members", text::thousands(&k.to_string())),
             None => "none (nothing passes)".to_string(),
         },
     );
