@@ -250,18 +250,29 @@ fn compile_game(source: &str, g: &Game) -> Result<RuleFile, Vec<Diagnostic>> {
     };
     check_quota(q_span, &text, q, &subject)?;
     let rule = Rule::weighted(q, weights.clone()).map_err(|e| vec![rule_error(g.span, "game", e)])?;
-    let members = (1..=weights.len())
+    let n = weights.len();
+    let members = (1..=n)
         .map(|i| Member {
             name: format!("p{i}"),
             span: g.span,
-            group: None,
+            group: Some(0),
         })
         .collect();
     Ok(RuleFile {
         title: None,
         members,
-        groups: Vec::new(),
-        blocs: Vec::new(),
+        // The members form one group `p`, so that `p1..p5` names a range.
+        groups: vec![Group {
+            name: "p".to_string(),
+            span: g.span,
+            first: 0,
+            len: n,
+        }],
+        blocs: vec![Bloc {
+            name: "p".to_string(),
+            span: g.span,
+            members: (0..n).collect(),
+        }],
         attributes: vec!["weight".to_string()],
         weights,
         rules: vec![CompiledRule {

@@ -151,6 +151,8 @@ fn weighted_game_notation() {
     assert_eq!(f.members[14].name, "p15");
     assert_eq!(r.rule.single_threshold(), Some((0, 39)));
     assert_eq!(r.rule.total(0), 45);
+    assert_eq!(f.members_named("p2..p4"), Some(vec![1, 2, 3]));
+    assert_eq!(f.describe_members(&[0, 1, 2, 3, 4]), ["p1..p5"]);
     assert_eq!(ok("[2; 1, 1, 1,]").members.len(), 3);
 }
 
