@@ -764,22 +764,32 @@ fn token_at(source: &str, at: usize) -> &str {
     }
 }
 
+/// A rule that begins a declaration (the keyword or the whole declaration).
+fn starts_declaration(kind: G) -> bool {
+    matches!(
+        kind,
+        G::declaration
+            | G::title
+            | G::member
+            | G::group
+            | G::bloc
+            | G::define
+            | G::rule
+            | G::kw_title
+            | G::kw_member
+            | G::kw_members
+            | G::kw_bloc
+            | G::kw_define
+            | G::kw_rule
+    )
+}
+
 fn describe(kind: G) -> Option<&'static str> {
     Some(match kind {
         G::EOI => "the end of the file",
-        G::declaration
-        | G::title
-        | G::member
-        | G::group
-        | G::bloc
-        | G::define
-        | G::rule
-        | G::kw_title
-        | G::kw_member
-        | G::kw_members
-        | G::kw_bloc
-        | G::kw_define
-        | G::kw_rule => "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)",
+        k if starts_declaration(k) => {
+            "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)"
+        }
         G::game => "`[`",
         G::close => "`)`",
         G::comma => "`,`",
@@ -812,19 +822,7 @@ fn hint_for(kind: G) -> Option<(u8, &'static str)> {
             (0, "the notation is `[q; w1, w2, ...]`, with `w xK` for K members of weight w")
         }
         G::close => (1, "every `(` needs its `)`"),
-        G::declaration
-        | G::title
-        | G::member
-        | G::group
-        | G::bloc
-        | G::define
-        | G::rule
-        | G::kw_title
-        | G::kw_member
-        | G::kw_members
-        | G::kw_bloc
-        | G::kw_define
-        | G::kw_rule => (2, declaration),
+        k if starts_declaration(k) => (2, declaration),
         G::expr | G::any_of | G::all_of | G::condition | G::k_of | G::reference => (
             3,
             "a condition is `ATTRIBUTE >= AMOUNT`, `K of BLOC`, a member or bloc name, or conditions joined by `and` / `or`",
