@@ -17,12 +17,12 @@ use std::collections::HashMap;
 
 use clout_core::limits::{MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES};
 use clout_core::quota::{self, Bound};
-use clout_core::{Atom, Error as CoreError, Node, Rule};
+use clout_core::{Atom, Condition as CoreCondition, Error as CoreError, Linear, Node, Rule};
 
 use crate::diagnostic::{closest, Diagnostic, Span};
 use crate::syntax::{
-    self, AmountValue, BlocDecl, Comparison, Declaration, Expr, Game, GroupDecl, MemberDecl, NamedExpr,
-    Threshold,
+    self, AmountValue, BlocDecl, Comparison, Declaration, Expr, Game, GroupDecl, GroupSide, GroupWord,
+    MemberDecl, NamedExpr, Threshold,
 };
 
 /// A compiled rule file: the members, their weights, and every rule.
@@ -342,6 +342,14 @@ fn check_quota(span: Span, text: &str, q: u64, s: &Subject<'_>) -> Result<(), Ve
     Err(vec![Diagnostic::error(span, message).with_hint(hint)])
 }
 
+fn gcd(a: i128, b: i128) -> i128 {
+    if b == 0 {
+        a
+    } else {
+        gcd(b, a % b)
+    }
+}
+
 fn rule_error(span: Span, name: &str, e: CoreError) -> Diagnostic {
     let (message, hint) = match e {
         CoreError::TooManyAtoms { atoms, limit } => (
@@ -395,7 +403,18 @@ enum Key {
 
 #[derive(Clone, Debug)]
 enum Resolved {
-    Atom { key: Key, quota: u64, span: Span },
+    Atom {
+        key: Key,
+        quota: u64,
+        span: Span,
+    },
+    /// A four-state condition `yes*Y + no*N + abstain*A >= bound` on `key`.
+    Linear {
+        key: Key,
+        coefficients: [i32; 3],
+        bound: i128,
+        span: Span,
+    },
     All(Vec<Resolved>),
     Any(Vec<Resolved>),
     Ref(usize),
@@ -986,6 +1005,9 @@ impl<'a> Compiler<'a> {
             },
         };
         let text = self.text(t.span);
+        if t.is_four_state() {
+            return self.four_state(t, key, total, &text);
+        }
         let comparison = self.comparison(t, &text)?;
         let bound = match t.amount.value {
             AmountValue::Integer(k) => Bound::Amount(k),
@@ -1026,6 +1048,173 @@ impl<'a> Compiler<'a> {
         Some(Resolved::Atom {
             key,
             quota,
+            span: t.span,
+        })
+    }
+
+    /// A condition with group words: `seats yes > 1/2 of cast`, `count
+    /// present >= 1/3`, `tokens yes > tokens no`. Becomes one linear form
+    /// `a*Y + b*N + c*A >= bound` over the attribute's yes, no and abstain
+    /// sums, exact in integers, refused unless monotone in yes votes.
+    fn four_state(&mut self, t: &Threshold, key: Key, total: u64, text: &str) -> Option<Resolved> {
+        let (cmp, cmp_span) = t.comparison;
+        if let Some(span) = t.against {
+            self.errors.push(
+                Diagnostic::error(span, "`against` cannot be combined with a group word")
+                    .with_hint("the votes against are the group `no`: write e.g. `seats no < 10`"),
+            );
+            return None;
+        }
+        let left = t.group.map_or(GroupWord::Yes, |(g, _)| g).vector();
+        // lhs - rhs = coefficients . (Y, N, A) - constant, compared with 0.
+        let (mut coef, constant): ([i128; 3], i128) = match &t.side {
+            None => match t.amount.value {
+                AmountValue::Integer(k) => (left, i128::from(k)),
+                AmountValue::Share {
+                    numerator,
+                    denominator,
+                    ..
+                } => {
+                    // G >= p/q of the attribute's total  <=>  q G >= p T.
+                    let (p, q) = (i128::from(numerator), i128::from(denominator));
+                    (left.map(|x| x * q), p * i128::from(total))
+                }
+            },
+            Some(GroupSide::ShareOf(word, span)) => match t.amount.value {
+                AmountValue::Share {
+                    numerator,
+                    denominator,
+                    ..
+                } => {
+                    let (p, q) = (i128::from(numerator), i128::from(denominator));
+                    let right = word.vector();
+                    ([0, 1, 2].map(|i| q * left[i] - p * right[i]), 0)
+                }
+                AmountValue::Integer(_) => {
+                    self.errors.push(
+                        Diagnostic::error(t.amount.span, format!("`of {}` needs a share", word.word()))
+                            .with_hint(format!(
+                                "write a fraction or a percentage, e.g. `1/2 of {}`",
+                                word.word()
+                            )),
+                    );
+                    let _ = span;
+                    return None;
+                }
+            },
+            Some(GroupSide::Sum(other, word, span)) => {
+                if let Some(other) = other {
+                    let same = match (other, &t.subject) {
+                        (syntax::Subject::Count(_), syntax::Subject::Count(_)) => true,
+                        (syntax::Subject::Name(a), syntax::Subject::Name(b)) => a.text == b.text,
+                        _ => false,
+                    };
+                    if !same {
+                        self.errors.push(
+                            Diagnostic::error(
+                                *span,
+                                "both sides of a comparison must sum the same attribute",
+                            )
+                            .with_hint(format!(
+                                "compare groups of one attribute, e.g. `{0} yes > {0} no`",
+                                t.subject.span().text(self.source)
+                            )),
+                        );
+                        return None;
+                    }
+                }
+                let right = word.vector();
+                ([0, 1, 2].map(|i| left[i] - right[i]), 0)
+            }
+        };
+        // Everything as `coef . x >= bound`.
+        let bound = match cmp {
+            Comparison::AtLeast => constant,
+            Comparison::MoreThan => constant + 1,
+            Comparison::AtMost | Comparison::LessThan => {
+                coef = coef.map(|x| -x);
+                -constant + i128::from(cmp == Comparison::LessThan)
+            }
+            Comparison::Equal | Comparison::NotEqual | Comparison::Reversed => {
+                self.errors.push(
+                    Diagnostic::error(
+                        cmp_span,
+                        format!("`{}` cannot be used here", cmp_span.text(self.source)),
+                    )
+                    .with_hint("write `>=`, `>`, `<=` or `<`"),
+                );
+                return None;
+            }
+        };
+        // Smallest integer form: divide by the gcd, rounding the bound up.
+        let g = coef.iter().fold(0i128, |g, &x| gcd(g, x.abs()));
+        let (coef, bound) = if g > 1 {
+            (
+                coef.map(|x| x / g),
+                bound.div_euclid(g) + i128::from(bound.rem_euclid(g) != 0),
+            )
+        } else {
+            (coef, bound)
+        };
+        let Ok(coefficients) =
+            <[i32; 3]>::try_from(coef.map(|x| i32::try_from(x).unwrap_or(i32::MAX)).as_slice())
+        else {
+            return None;
+        };
+        if coef.iter().any(|x| i32::try_from(*x).is_err()) {
+            self.errors.push(
+                Diagnostic::error(
+                    t.amount.span,
+                    "the share is too precise for a four-state condition",
+                )
+                .with_hint("use fewer decimals in the percentage"),
+            );
+            return None;
+        }
+        let linear = Linear {
+            attribute: 0,
+            yes: coefficients[0],
+            no: coefficients[1],
+            abstain: coefficients[2],
+            bound,
+        };
+        if linear.check_monotone().is_err() {
+            let why = if coefficients[0] < 0 {
+                "an extra yes vote could defeat the motion"
+            } else if coefficients[0] < coefficients[1] {
+                "switching a vote from no to yes could defeat the motion"
+            } else {
+                "switching from abstaining to yes could defeat the motion"
+            };
+            self.errors.push(
+                Diagnostic::error(t.span, format!("`{text}` is not monotone: {why}"))
+                    .with_hint("indices need rules where a yes vote never hurts; bound what passage requires, e.g. `seats yes > 1/2 of cast` or `count no < 10`"),
+            );
+            return None;
+        }
+        // Over all four-state ballots the left side ranges from T * min to
+        // T * max of (0, coefficients): refuse conditions that cannot vary.
+        let t_total = i128::from(total);
+        let lowest = t_total * coefficients.iter().map(|&c| i128::from(c)).fold(0, i128::min);
+        let highest = t_total * coefficients.iter().map(|&c| i128::from(c)).fold(0, i128::max);
+        if lowest >= bound {
+            self.errors.push(
+                Diagnostic::error(t.span, format!("`{text}` holds for every ballot"))
+                    .with_hint("a condition every ballot meets does nothing; raise the amount"),
+            );
+            return None;
+        }
+        if highest < bound {
+            self.errors.push(
+                Diagnostic::error(t.span, format!("no ballot can meet `{text}`"))
+                    .with_hint(format!("lower the amount (the total is {total})")),
+            );
+            return None;
+        }
+        Some(Resolved::Linear {
+            key,
+            coefficients,
+            bound,
             span: t.span,
         })
     }
@@ -1136,6 +1325,7 @@ impl<'a> Compiler<'a> {
             declared: self.attributes.len(),
             keys: Vec::new(),
             atoms: Vec::new(),
+            linear: Vec::new(),
             conditions: Vec::new(),
             nodes: Vec::new(),
             cache: HashMap::new(),
@@ -1186,7 +1376,16 @@ impl<'a> Compiler<'a> {
             };
             attributes.push(Attribute { name, kind });
         }
-        match Rule::new(n, weights, &lowering.atoms, &lowering.nodes) {
+        let conditions: Vec<CoreCondition> = lowering
+            .atoms
+            .iter()
+            .zip(&lowering.linear)
+            .map(|(a, l)| match l {
+                Some(l) => CoreCondition::Linear(*l),
+                None => CoreCondition::Yes(*a),
+            })
+            .collect();
+        match Rule::with_conditions(n, weights, &conditions, &lowering.nodes) {
             Ok(rule) => Some(CompiledRule {
                 name: decl.name.text.clone(),
                 span: decl.name.span,
@@ -1207,7 +1406,7 @@ fn collect_refs(r: &Resolved, out: &mut Vec<usize>) {
     match r {
         Resolved::Ref(k) => out.push(*k),
         Resolved::All(v) | Resolved::Any(v) => v.iter().for_each(|x| collect_refs(x, out)),
-        Resolved::Atom { .. } => {}
+        Resolved::Atom { .. } | Resolved::Linear { .. } => {}
     }
 }
 
@@ -1216,6 +1415,8 @@ struct Lowering {
     declared: usize,
     keys: Vec<Key>,
     atoms: Vec<Atom>,
+    /// The four-state form of each atom, if any.
+    linear: Vec<Option<Linear>>,
     conditions: Vec<Condition>,
     nodes: Vec<Node>,
     /// Nodes of each definition already lowered in this rule: a second use
@@ -1247,8 +1448,30 @@ impl Lowering {
             return;
         }
         match r {
+            Resolved::Linear {
+                key,
+                coefficients,
+                bound,
+                span,
+            } => {
+                let attribute = self.attribute(*key);
+                self.atoms.push(Atom { attribute, quota: 0 });
+                self.linear.push(Some(Linear {
+                    attribute,
+                    yes: coefficients[0],
+                    no: coefficients[1],
+                    abstain: coefficients[2],
+                    bound: *bound,
+                }));
+                self.conditions.push(Condition {
+                    text: one_line(span.text(source)),
+                    span: *span,
+                });
+                self.push(Node::Atom((self.atoms.len() - 1) as u16));
+            }
             Resolved::Atom { key, quota, span } => {
                 let attribute = self.attribute(*key);
+                self.linear.push(None);
                 self.atoms.push(Atom {
                     attribute,
                     quota: *quota,

@@ -8,6 +8,9 @@
 //! inline; otherwise each atom becomes `define cK = ...` and the rule refers
 //! to the definitions.
 //!
+//! Four-state conditions print as `aK G >= k` or `aK G1 >= p/q of G2`
+//! (the shapes the compiler produces, after reduction by the gcd).
+//!
 //! Compiling the text gives back the same rule for every rule the compiler
 //! produces (atoms numbered in order of first use, operators with at least
 //! two operands, quotas between 1 and their attribute's total). O(members *
@@ -15,7 +18,7 @@
 
 use std::fmt::Write;
 
-use clout_core::{Node, Rule};
+use clout_core::{Linear, Node, Rule};
 
 enum Tree {
     Atom(u16),
@@ -36,7 +39,10 @@ pub fn print_rule<W: AsRef<[u64]>>(rule: &Rule<W>) -> String {
         order.len() == rule.atoms().len() && order.iter().enumerate().all(|(k, &a)| usize::from(a) == k);
     let atom_text = |i: u16| {
         let atom = rule.atoms()[usize::from(i)];
-        format!("a{} >= {}", atom.attribute + 1, atom.quota)
+        match rule.linear(usize::from(i)).and_then(|l| four_state_text(&l)) {
+            Some(text) => text,
+            None => format!("a{} >= {}", atom.attribute + 1, atom.quota),
+        }
     };
     if !inline {
         for i in 0..rule.atoms().len() {
@@ -52,6 +58,55 @@ pub fn print_rule<W: AsRef<[u64]>>(rule: &Rule<W>) -> String {
     };
     let _ = writeln!(out, "rule printed = {}", expression(&tree, &leaf, true));
     out
+}
+
+const GROUPS: [(&str, [i128; 3]); 5] = [
+    ("yes", [1, 0, 0]),
+    ("no", [0, 1, 0]),
+    ("abstain", [0, 0, 1]),
+    ("cast", [1, 1, 0]),
+    ("present", [1, 1, 1]),
+];
+
+/// A four-state condition in the language, for the two shapes the compiler
+/// produces: `aK G >= k` (or `<=`) and `aK G1 >= p/q of G2` (or `>`). `None` for
+/// other coefficient vectors.
+fn four_state_text(l: &Linear) -> Option<String> {
+    let a = l.attribute + 1;
+    let v = [i128::from(l.yes), i128::from(l.no), i128::from(l.abstain)];
+    for (name, g) in GROUPS {
+        if v == g {
+            return Some(format!("a{a} {name} >= {}", l.bound));
+        }
+        if v == g.map(|x| -x) {
+            return Some(format!("a{a} {name} <= {}", -l.bound));
+        }
+    }
+    // `>=` compiles to bound 0 and `>` to bound 1 (kept by the gcd reduction).
+    let op = match l.bound {
+        0 => ">=",
+        1 => ">",
+        _ => return None,
+    };
+    // v = q g1 - p g2 with 0 < p <= q.
+    for (n1, g1) in GROUPS {
+        for (n2, g2) in GROUPS {
+            for q in 1..=1000i128 {
+                let Some(i) = (0..3).find(|&i| g2[i] != 0) else {
+                    continue;
+                };
+                let p = q * g1[i] - v[i];
+                if p <= 0 || p > q || p % g2[i] != 0 {
+                    continue;
+                }
+                let p = p / g2[i];
+                if (0..3).all(|k| q * g1[k] - p * g2[k] == v[k]) {
+                    return Some(format!("a{a} {n1} {op} {p}/{q} of {n2}"));
+                }
+            }
+        }
+    }
+    None
 }
 
 fn print_members<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut String) {
@@ -173,5 +228,33 @@ mod tests {
         let rule = Rule::new(4, vec![3, 1, 1, 0, 0, 2, 2, 1], &atoms[..2], &formula).unwrap();
         assert!(print_rule(&rule)
             .ends_with("define c1 = a1 >= 3\ndefine c2 = a2 >= 1\nrule printed = c1 and (c2 or c1)\n"));
+    }
+}
+
+#[cfg(test)]
+mod four_state_tests {
+    use crate::compile;
+
+    /// Four-state rules print and compile back to the same rule.
+    #[test]
+    fn four_state_round_trip() {
+        for cond in [
+            "seats yes >= 2/3 of cast",
+            "seats yes > 1/2 of cast",
+            "count present >= 1/3",
+            "seats yes > seats no",
+            "count no < 3",
+            "count yes >= 2/3 of present",
+            "seats yes >= 62.5% of cast",
+        ] {
+            let src = format!(
+                "member a seats=3\nmember b seats=2\nmember c seats=2\nmember d seats=1\nrule r = {cond}\n"
+            );
+            let file = compile(&src).unwrap_or_else(|e| panic!("{cond}: {e:?}"));
+            let rule = &file.rules[0].rule;
+            let printed = crate::print_rule(rule);
+            let again = compile(&printed).unwrap_or_else(|e| panic!("{cond}: {printed}\n{e:?}"));
+            assert_eq!(&again.rules[0].rule, rule, "{cond} printed as\n{printed}");
+        }
     }
 }

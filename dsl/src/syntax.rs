@@ -224,19 +224,78 @@ pub enum Comparison {
     Reversed,
 }
 
-/// `SUBJECT [against] CMP AMOUNT`.
+/// Which members of a four-state ballot a sum runs over.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum GroupWord {
+    /// `yes`: voting yes.
+    Yes,
+    /// `no`: voting no.
+    No,
+    /// `abstain`: present, voting neither way.
+    Abstain,
+    /// `cast`: yes + no.
+    Cast,
+    /// `present`: yes + no + abstain.
+    Present,
+}
+
+impl GroupWord {
+    /// Coefficients of the yes, no and abstain sums.
+    pub fn vector(self) -> [i128; 3] {
+        match self {
+            GroupWord::Yes => [1, 0, 0],
+            GroupWord::No => [0, 1, 0],
+            GroupWord::Abstain => [0, 0, 1],
+            GroupWord::Cast => [1, 1, 0],
+            GroupWord::Present => [1, 1, 1],
+        }
+    }
+
+    /// The word as written.
+    pub fn word(self) -> &'static str {
+        match self {
+            GroupWord::Yes => "yes",
+            GroupWord::No => "no",
+            GroupWord::Abstain => "abstain",
+            GroupWord::Cast => "cast",
+            GroupWord::Present => "present",
+        }
+    }
+}
+
+/// The right-hand side of a four-state comparison, when it is not a plain amount.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum GroupSide {
+    /// `AMOUNT of GROUP`: a share of another group's sum of the same attribute.
+    ShareOf(GroupWord, Span),
+    /// `[SUBJECT] GROUP`: another group's sum (of the same attribute).
+    Sum(Option<Subject>, GroupWord, Span),
+}
+
+/// `SUBJECT [against] [GROUP] CMP AMOUNT`, or a four-state comparison.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Threshold {
     /// What is summed.
     pub subject: Subject,
     /// `Some` when the sum is over the no-voters.
     pub against: Option<Span>,
+    /// The group word after the subject (`seats yes`, `count present`).
+    pub group: Option<(GroupWord, Span)>,
     /// The comparison and where it is written.
     pub comparison: (Comparison, Span),
-    /// The bound.
+    /// The bound (for [`GroupSide::ShareOf`], the share).
     pub amount: Amount,
+    /// A group on the right-hand side (`1/2 of cast`, `tokens no`).
+    pub side: Option<GroupSide>,
     /// The whole condition.
     pub span: Span,
+}
+
+impl Threshold {
+    /// Whether the condition is a four-state form (a group word anywhere).
+    pub fn is_four_state(&self) -> bool {
+        self.group.is_some() || self.side.is_some()
+    }
 }
 
 /// A bound: an absolute amount or a share of the total.
@@ -500,24 +559,41 @@ impl Builder {
         let mut against = None;
         let mut comparison = (Comparison::AtLeast, span);
         let mut amount = None;
+        let mut group = None;
+        let mut side = None;
         for p in pair.into_inner() {
             match p.as_rule() {
-                G::subject => {
-                    if let Some(s) = p.into_inner().next() {
-                        subject = match s.as_rule() {
-                            G::kw_count => Subject::Count(span_of(&s)),
-                            _ => Subject::Name(name_of(&s)),
-                        };
-                    }
-                }
+                G::subject => subject = subject_of(p, span),
                 G::against => against = Some(span_of(&p)),
+                G::group_word => group = Some((group_of(p.as_str()), span_of(&p))),
                 G::comparison => comparison = (comparison_of(p.as_str()), span_of(&p)),
+                G::share_of => {
+                    let side_span = span_of(&p);
+                    let mut inner = p.into_inner();
+                    amount = Some(self.amount(inner.next()));
+                    let word = inner.nth(1).map_or(GroupWord::Yes, |g| group_of(g.as_str()));
+                    side = Some(GroupSide::ShareOf(word, side_span));
+                }
+                G::side => {
+                    let side_span = span_of(&p);
+                    let mut other = None;
+                    let mut word = GroupWord::Yes;
+                    for q in p.into_inner() {
+                        match q.as_rule() {
+                            G::subject => other = Some(subject_of(q, side_span)),
+                            _ => word = group_of(q.as_str()),
+                        }
+                    }
+                    side = Some(GroupSide::Sum(other, word, side_span));
+                }
                 _ => amount = Some(self.amount(Some(p))),
             }
         }
         Expr::Threshold(Threshold {
             subject,
             against,
+            group,
+            side,
             comparison,
             amount: amount.unwrap_or(Amount {
                 value: AmountValue::Integer(0),
@@ -653,6 +729,24 @@ fn name_of(pair: &Pair<'_, G>) -> Name {
     Name {
         text: pair.as_str().to_string(),
         span: span_of(pair),
+    }
+}
+
+fn subject_of(pair: Pair<'_, G>, fallback: Span) -> Subject {
+    match pair.into_inner().next() {
+        Some(s) if s.as_rule() == G::kw_count => Subject::Count(span_of(&s)),
+        Some(s) => Subject::Name(name_of(&s)),
+        None => Subject::Count(fallback),
+    }
+}
+
+fn group_of(text: &str) -> GroupWord {
+    match text {
+        "no" => GroupWord::No,
+        "abstain" => GroupWord::Abstain,
+        "cast" => GroupWord::Cast,
+        "present" => GroupWord::Present,
+        _ => GroupWord::Yes,
     }
 }
 

@@ -80,12 +80,26 @@ struct DecideArgs {
     /// Members voting yes: names, groups, blocs, ranges such as `rep1..rep218`, or `all`.
     #[arg(long, value_name = "NAMES", value_delimiter = ',')]
     yes: Vec<String>,
-    /// Members taken out of the yes list (same forms), e.g. `--yes all --no harbor`.
+    /// Members voting no (same forms; applied after --yes, so `--yes all --no harbor` works).
     #[arg(long, value_name = "NAMES", value_delimiter = ',')]
     no: Vec<String>,
+    /// Members present but abstaining (same forms).
+    #[arg(long, value_name = "NAMES", value_delimiter = ',')]
+    abstain: Vec<String>,
+    /// How everyone not listed votes (default: absent, or no when only --yes is given).
+    #[arg(long, value_enum)]
+    rest: Option<Rest>,
     /// Output format.
     #[arg(long, value_enum, default_value_t = DecideFormat::Text)]
     format: DecideFormat,
+}
+
+/// How members not named on the command line vote.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum Rest {
+    No,
+    Abstain,
+    Absent,
 }
 
 #[derive(Args)]
