@@ -99,7 +99,24 @@ pub fn estimate<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<u128,
 /// coalitions; its cost is [`estimate`]'s, and over `budget` is
 /// [`Error::TooCostly`].
 pub fn choose<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Error> {
-    let mut plan = planner::plan(rule, budget)?;
+    choose_within(rule, budget, u64::MAX)
+}
+
+/// [`choose`] among the engines whose estimated memory, in this module's
+/// count width, fits `memory` bytes; [`Error::MemoryLimit`] when none does.
+pub fn choose_within<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128, memory: u64) -> Result<Plan, Error> {
+    let limits = planner::Limits {
+        budget: u128::MAX,
+        memory,
+        count_bytes: 8 * limbs_for(rule.members()),
+    };
+    let mut plan = planner::plan_within(rule, clout_core::engine::Scope::All, &limits)?;
+    if plan.cost > budget {
+        return Err(Error::TooCostly {
+            estimate: plan.cost,
+            budget,
+        });
+    }
     plan.cost = estimate(rule, plan.engine)?;
     if plan.cost > budget {
         return Err(Error::TooCostly {
@@ -115,6 +132,7 @@ pub fn choose<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128) -> Result<Plan, Err
         .costs
         .iter()
         .filter(|(e, c)| e.computes_minimal() && c.is_some())
+        .filter(|(e, _)| plan.memory_of(*e).is_some_and(|m| m <= memory))
         .filter_map(|&(e, _)| Some((e, estimate(rule, e).ok()?)))
         .filter(|&(_, c)| c <= acceptable)
         .min_by_key(|&(_, c)| c);

@@ -7,6 +7,7 @@
 
 mod check;
 mod decide;
+mod estimate;
 mod input;
 mod progress;
 mod report;
@@ -71,6 +72,51 @@ struct ReportArgs {
     /// Most elementary steps the exact computation may take.
     #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
     budget: u128,
+    /// Most memory an engine may use, e.g. 2GiB or 512MiB.
+    #[arg(long, value_name = "BYTES", value_parser = parse_bytes, default_value = "2GiB")]
+    memory: u64,
+    /// Print the planner's estimates for every engine and why it chose one.
+    #[arg(long)]
+    explain: bool,
+    /// Refuse to approximate: fail when no exact engine fits the budget and memory.
+    #[arg(long)]
+    exact: bool,
+    /// Target half-width of approximate figures (95% confidence).
+    #[arg(long, value_name = "H", default_value_t = 0.001)]
+    tolerance: f64,
+    /// Seed of the Monte Carlo sampler (same seed, same figures).
+    #[arg(long, value_name = "N", default_value_t = 1)]
+    seed: u64,
+    /// Also give Felsenthal & Machover's ternary Banzhaf measure (yes, abstain, no).
+    #[arg(long)]
+    ternary: bool,
+    /// Also give the probability of passage when each member attends with chance P
+    /// and then votes yes or no with equal chance.
+    #[arg(long, value_name = "P")]
+    attendance: Option<f64>,
+}
+
+/// A byte count such as `2GiB`, `512MiB`, `64KiB` or `1000000`.
+fn parse_bytes(s: &str) -> Result<u64, String> {
+    let t = s.trim().replace('_', "");
+    let (digits, unit) = t.split_at(t.find(|c: char| !c.is_ascii_digit()).unwrap_or(t.len()));
+    let scale: u64 = match unit.to_ascii_lowercase().as_str() {
+        "" | "b" => 1,
+        "kib" | "k" => 1 << 10,
+        "mib" | "m" => 1 << 20,
+        "gib" | "g" => 1 << 30,
+        "tib" | "t" => 1 << 40,
+        _ => {
+            return Err(format!(
+                "`{s}` is not a size (write e.g. 2GiB, 512MiB or 1000000)"
+            ))
+        }
+    };
+    digits
+        .parse::<u64>()
+        .ok()
+        .and_then(|d| d.checked_mul(scale))
+        .ok_or_else(|| format!("`{s}` is not a size (write e.g. 2GiB, 512MiB or 1000000)"))
 }
 
 #[derive(Args)]

@@ -31,25 +31,231 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
     let s = &args.source;
     let input = Input::load(s.file.as_deref(), s.game.as_deref(), true)?;
     let rule = input.rule(s.rule.as_deref())?;
-    let power = analyse(rule, args.engine.engine(), args.budget)?;
-    let out = match args.format {
-        Format::Text => text_report(&input, rule, &power),
-        Format::Json => json_report(&input, rule, &power),
-        Format::Csv => csv_report(&input, rule, &power),
+    if let Some(p) = args.attendance {
+        if !(0.0..=1.0).contains(&p) {
+            return Err(Failure::input(format!(
+                "--attendance {p} is not a chance between 0 and 1\n  = hint: e.g. --attendance 0.8"
+            )));
+        }
+    }
+    let explained = if args.explain {
+        explain(rule, args)
+    } else {
+        String::new()
     };
-    Ok(Outcome::ok(out))
+    let power = match analyse(rule, args.engine.engine(), args.budget, args.memory) {
+        Ok(p) => p,
+        Err((err, failure)) => {
+            let over = matches!(
+                err,
+                Some(clout::Error::TooCostly { .. } | clout::Error::MemoryLimit { .. })
+            );
+            if over && !args.exact && args.engine.engine().is_none() {
+                let why = err.map(reason).unwrap_or_default();
+                let out = super::estimate::run(&input, rule, args, &why)?;
+                return Ok(with_explanation(out, explained, args.format));
+            }
+            return Err(failure);
+        }
+    };
+    let extras = Extras::of(rule, args)?;
+    let out = match args.format {
+        Format::Text => text_report(&input, rule, &power, &extras),
+        Format::Json => json_report(&input, rule, &power, &extras),
+        Format::Csv => csv_report(&input, rule, &power, &extras),
+    };
+    Ok(with_explanation(Outcome::ok(out), explained, args.format))
+}
+
+/// The plan goes before a text report, and to stderr beside JSON or CSV so
+/// that their output stays parseable.
+fn with_explanation(mut out: Outcome, explained: String, format: Format) -> Outcome {
+    if format == Format::Text {
+        out.stdout.insert_str(0, &explained);
+    } else {
+        out.stderr.insert_str(0, &explained);
+    }
+    out
+}
+
+/// Why exact counting was refused, in a drafter's words.
+fn reason(err: clout::Error) -> String {
+    match err {
+        clout::Error::MemoryLimit { needed, limit } => {
+            let needed = if needed == u64::MAX {
+                "more than 16 EiB".to_string()
+            } else {
+                bytes(needed)
+            };
+            format!(
+                "the cheapest exact engine needs {needed}, over the memory limit of {}",
+                bytes(limit)
+            )
+        }
+        clout::Error::TooCostly { estimate, budget } => format!(
+            "the cheapest exact engine needs about {:.1e} steps, over the budget of {:.1e}",
+            estimate as f64, budget as f64
+        ),
+        other => other.to_string(),
+    }
+}
+
+/// The figures `--ternary` and `--attendance` ask for.
+#[derive(Default)]
+struct Extras {
+    /// Felsenthal & Machover's ternary Banzhaf measure of every member.
+    ternary: Option<Vec<f64>>,
+    /// (attendance chance, probability of passage).
+    attendance: Option<(f64, f64)>,
+}
+
+/// Most three-way profiles `--ternary` and `--attendance` visit.
+const MAX_TERNARY_PROFILES: f64 = 5e7;
+
+impl Extras {
+    fn of(rule: &CompiledRule, args: &ReportArgs) -> Result<Extras, Failure> {
+        if !args.ternary && args.attendance.is_none() {
+            return Ok(Extras::default());
+        }
+        let profiles: f64 = rows(rule)
+            .iter()
+            .map(|m| (m.len() as f64 + 1.0) * (m.len() as f64 + 2.0) / 2.0)
+            .product();
+        if profiles > MAX_TERNARY_PROFILES {
+            return Err(Failure::input(format!(
+                "rule `{}`: three-way ballots need about {profiles:.1e} profiles of member types, over the limit of {MAX_TERNARY_PROFILES:.0e}\n  = hint: --ternary and --attendance count every way of voting yes, no or abstaining; members with identical weights make that much cheaper",
+                rule.name
+            )));
+        }
+        let fail = |e: clout::Error| Failure::input(format!("rule `{}`: {e}", rule.name));
+        let r = &rule.rule;
+        let ternary = if args.ternary {
+            let t = with_progress("counting three-way ballots", || {
+                if r.members() < 600 {
+                    clout::ternary::ternary_banzhaf::<_, clout::Wide<16>>(r)
+                        .map(|t| (0..r.members()).map(|i| t.measure(i)).collect())
+                } else {
+                    clout::ternary::ternary_banzhaf::<_, clout::Wide<1025>>(r)
+                        .map(|t| (0..r.members()).map(|i| t.measure(i)).collect())
+                }
+            })
+            .map_err(fail)?;
+            Some(t)
+        } else {
+            None
+        };
+        let attendance = match args.attendance {
+            Some(p) => Some((p, clout::ternary::passage_with_attendance(r, p).map_err(fail)?)),
+            None => None,
+        };
+        Ok(Extras { ternary, attendance })
+    }
+}
+
+/// The planner's view of the rule, for `--explain`.
+fn explain(rule: &CompiledRule, args: &ReportArgs) -> String {
+    let r = &rule.rule;
+    let count_bytes = 8 * exact::limbs_for(r.members());
+    let limits = clout::planner::Limits {
+        budget: u128::MAX,
+        memory: u64::MAX,
+        count_bytes,
+    };
+    let mut out = String::from("plan\n");
+    let _ = writeln!(
+        out,
+        "  {} members, {} conditions; budget {:.1e} steps, memory limit {}",
+        r.members(),
+        r.atoms().len(),
+        args.budget as f64,
+        bytes(args.memory)
+    );
+    match clout::planner::plan_within(r, clout::engine::Scope::All, &limits) {
+        Ok(plan) => {
+            for e in clout::Engine::ALL {
+                let verdict = match (plan.cost_of(e), plan.memory_of(e)) {
+                    (Some(c), Some(m)) => {
+                        let c = exact::estimate(r, e).unwrap_or(c);
+                        let mut why = Vec::new();
+                        if c > args.budget {
+                            why.push("over the budget");
+                        }
+                        if m > args.memory {
+                            why.push("over the memory limit");
+                        }
+                        let fits = if why.is_empty() {
+                            "fits".to_string()
+                        } else {
+                            why.join(", ")
+                        };
+                        format!("about {:.1e} steps, {} ({fits})", c as f64, bytes(m))
+                    }
+                    _ => "cannot handle this rule".to_string(),
+                };
+                let _ = writeln!(out, "  {:<10} {}: {verdict}", e.name(), e.describe());
+            }
+        }
+        Err(e) => {
+            let _ = writeln!(out, "  no exact engine applies: {e}");
+        }
+    }
+    match exact::choose_within(r, args.budget, args.memory) {
+        Ok(plan) => {
+            let _ = writeln!(
+                out,
+                "  chosen: {} (the cheapest that fits{})",
+                plan.engine.name(),
+                if plan.engine.computes_minimal() {
+                    ""
+                } else {
+                    "; it gives no minimal-coalition indices"
+                }
+            );
+        }
+        Err(e) if !args.exact => {
+            let _ = writeln!(
+                out,
+                "  chosen: approximation ({}); --exact would refuse",
+                reason(e)
+            );
+        }
+        Err(e) => {
+            let _ = writeln!(out, "  chosen: none ({e})");
+        }
+    }
+    out.push('\n');
+    out
+}
+
+fn bytes(b: u64) -> String {
+    const UNITS: [(&str, u64); 4] = [
+        ("TiB", 1 << 40),
+        ("GiB", 1 << 30),
+        ("MiB", 1 << 20),
+        ("KiB", 1 << 10),
+    ];
+    for (name, size) in UNITS {
+        if b >= size {
+            return format!("{:.1} {name}", b as f64 / size as f64);
+        }
+    }
+    format!("{b} B")
 }
 
 /// Plans (or takes the forced engine) and counts, with a progress line.
-pub fn analyse(rule: &CompiledRule, forced: Option<clout::Engine>, budget: u128) -> Result<Power, Failure> {
+/// On failure, the core's error (when there is one) and the message for the user.
+pub fn analyse(
+    rule: &CompiledRule,
+    forced: Option<clout::Engine>,
+    budget: u128,
+    memory: u64,
+) -> Result<Power, (Option<clout::Error>, Failure)> {
     let r = &rule.rule;
+    let fail = |err: clout::Error| (Some(err), core_failure(rule, err));
     let (engine, cost) = match forced {
-        Some(e) => (
-            e,
-            clout::engine::cost(r, e).map_err(|err| core_failure(rule, err))?,
-        ),
+        Some(e) => (e, clout::engine::cost(r, e).map_err(fail)?),
         None => {
-            let plan = exact::choose(r, budget).map_err(|err| core_failure(rule, err))?;
+            let plan = exact::choose_within(r, budget, memory).map_err(fail)?;
             (plan.engine, plan.cost)
         }
     };
@@ -59,19 +265,20 @@ pub fn analyse(rule: &CompiledRule, forced: Option<clout::Engine>, budget: u128)
         engine.name(),
         cost as f64
     );
-    with_progress(&label, || exact::power(r, engine)).map_err(|err| core_failure(rule, err))
+    with_progress(&label, || exact::power(r, engine)).map_err(fail)
 }
 
 fn core_failure(rule: &CompiledRule, err: clout::Error) -> Failure {
     let hint = match err {
-        clout::Error::TooCostly { .. } => {
-            "\n  = hint: raise the limit with --budget STEPS (5e10 steps take about a minute); \
+        clout::Error::TooCostly { .. } | clout::Error::MemoryLimit { .. } => {
+            "\n  = hint: raise the limits with --budget STEPS (5e10 steps take about a minute) or --memory BYTES, \
+             or leave out --exact to get approximate figures with error bounds; \
              members with identical weights (`members NAME xK`) make exact counting much cheaper"
         }
         clout::Error::EngineUnsuitable { .. } => "\n  = hint: leave out --engine to let the planner choose",
         _ => "",
     };
-    Failure::input(format!("rule `{}`: {err}{hint}", rule.name))
+    Failure::input(format!("rule `{}`: {}{hint}", rule.name, reason(err)))
 }
 
 /// Members with identical weight columns, in order of first appearance.
@@ -126,7 +333,7 @@ fn label(input: &Input, members: &[usize]) -> String {
     format!("{shown}, … (+{})", names.len() - used)
 }
 
-fn text_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
+fn text_report(input: &Input, rule: &CompiledRule, power: &Power, extras: &Extras) -> String {
     let r = &rule.rule;
     let file = &input.file;
     let mut out = String::new();
@@ -304,6 +511,33 @@ fn text_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
             "≈ marks a rounded display of an exact count; --format json gives every digit."
         );
     }
+    if r.has_linear() {
+        let _ = writeln!(
+            out,
+            "\nFour-state conditions: the figures above are for two-state ballots (every member present, yes \
+or no; an abstention or absence counts as not yes), where each condition reduces to the quota shown."
+        );
+    }
+    if let Some(ternary) = &extras.ternary {
+        let _ = writeln!(
+            out,
+            "\nternary Banzhaf measure (yes, abstain or no, each with chance 1/3; Felsenthal & Machover 1997):"
+        );
+        for members in &rows {
+            let _ = writeln!(
+                out,
+                "  {:<28} {}",
+                label(input, members),
+                text::index(ternary[members[0]])
+            );
+        }
+    }
+    if let Some((p, prob)) = extras.attendance {
+        let _ = writeln!(
+            out,
+            "\nprobability of passage with attendance {p}: {prob:.6} (each member present with chance {p}, then yes or no with equal chance)"
+        );
+    }
     let _ = writeln!(out, "\n{MODEL}\n{CAUTION}");
     out
 }
@@ -324,8 +558,16 @@ struct JsonReport<'a> {
     smallest_winning_coalition: Option<usize>,
     conditions: Vec<JsonCondition<'a>>,
     engine: &'static str,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    attendance: Option<JsonAttendance>,
     model: &'static str,
     caution: &'static str,
+}
+
+#[derive(Serialize)]
+struct JsonAttendance {
+    chance: f64,
+    passage_probability: f64,
 }
 
 #[derive(Serialize)]
@@ -345,6 +587,8 @@ struct JsonMember<'a> {
     dummy: bool,
     veto: bool,
     dictator: bool,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    ternary_banzhaf: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -361,7 +605,7 @@ struct JsonCondition<'a> {
     total: String,
 }
 
-fn json_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
+fn json_report(input: &Input, rule: &CompiledRule, power: &Power, extras: &Extras) -> String {
     let file = &input.file;
     let r = &rule.rule;
     let members = power
@@ -399,6 +643,7 @@ fn json_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
             dummy: m.dummy,
             veto: m.veto,
             dictator: m.dictator,
+            ternary_banzhaf: extras.ternary.as_ref().map(|t| t[i]),
         })
         .collect();
     let conditions = rule
@@ -430,6 +675,12 @@ fn json_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
         smallest_winning_coalition: power.smallest_winning,
         conditions,
         engine: power.engine.name(),
+        attendance: extras
+            .attendance
+            .map(|(chance, passage_probability)| JsonAttendance {
+                chance,
+                passage_probability,
+            }),
         model: MODEL,
         caution: CAUTION,
     };
@@ -438,7 +689,7 @@ fn json_report(input: &Input, rule: &CompiledRule, power: &Power) -> String {
     s
 }
 
-fn csv_report(input: &Input, _rule: &CompiledRule, power: &Power) -> String {
+fn csv_report(input: &Input, _rule: &CompiledRule, power: &Power, extras: &Extras) -> String {
     let file = &input.file;
     let mut out = String::from("member");
     for a in &file.attributes {
@@ -446,8 +697,13 @@ fn csv_report(input: &Input, _rule: &CompiledRule, power: &Power) -> String {
         out.push_str(a);
     }
     out.push_str(
-        ",swings,banzhaf,penrose,shapley_shubik,coleman_prevent,coleman_initiate,johnston,deegan_packel,public_good,dummy,veto,dictator\n",
+        ",swings,banzhaf,penrose,shapley_shubik,coleman_prevent,coleman_initiate,johnston,deegan_packel,public_good,dummy,veto,dictator",
     );
+    out.push_str(if extras.ternary.is_some() {
+        ",ternary_banzhaf\n"
+    } else {
+        "\n"
+    });
     let opt = |v: Option<f64>| v.map(|x| x.to_string()).unwrap_or_default();
     for (i, m) in power.members.iter().enumerate() {
         let _ = write!(out, "{}", file.members[i].name);
@@ -470,6 +726,10 @@ fn csv_report(input: &Input, _rule: &CompiledRule, power: &Power) -> String {
             m.veto,
             m.dictator
         );
+        if let Some(t) = &extras.ternary {
+            out.pop();
+            let _ = writeln!(out, ",{}", t[i]);
+        }
     }
     out
 }
