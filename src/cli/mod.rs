@@ -8,6 +8,7 @@
 mod check;
 mod decide;
 mod estimate;
+mod image;
 mod input;
 mod progress;
 mod report;
@@ -45,6 +46,10 @@ enum Command {
     Check(CheckArgs),
     /// Print the embedded demo rule file (a starting point for your own).
     Demo,
+    /// Write one rule as a binary image for devices and the C ABI.
+    Compile(CompileArgs),
+    /// Show what a rule image holds and whether it is intact (exit 2 when damaged).
+    Inspect(InspectArgs),
 }
 
 #[derive(Args)]
@@ -146,6 +151,21 @@ enum Rest {
     No,
     Abstain,
     Absent,
+}
+
+#[derive(Args)]
+struct CompileArgs {
+    #[command(flatten)]
+    source: Source,
+    /// Where to write the image (default: FILE with the extension `.RULE.img`).
+    #[arg(short, long, value_name = "FILE.img")]
+    output: Option<PathBuf>,
+}
+
+#[derive(Args)]
+struct InspectArgs {
+    /// The image file.
+    image: PathBuf,
 }
 
 #[derive(Args)]
@@ -264,6 +284,8 @@ pub fn main() -> ExitCode {
         Command::Decide(a) => decide::run(&a),
         Command::Check(a) => Ok(check::run(&a)),
         Command::Demo => Ok(Outcome::ok(input::DEMO.to_string())),
+        Command::Compile(a) => image::compile(&a),
+        Command::Inspect(a) => image::inspect(&a),
     };
     let outcome = outcome.unwrap_or_else(|f| Outcome {
         stdout: String::new(),
