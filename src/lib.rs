@@ -7,3 +7,4 @@ pub use clout_core as core;
 pub use clout_core::*;
 
 pub mod scenarios;
+pub mod toolkit;
