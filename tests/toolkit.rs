@@ -211,3 +211,39 @@ fn dummies_drop_out() {
         }
     );
 }
+
+#[test]
+fn fit_recovers_the_indices_of_a_weighted_game() {
+    use clout::toolkit::fit::{self, Options};
+    // Targets taken from existing weighted games' normalized Banzhaf indices
+    // (computed by the core's exact engines): the fit must find a game with
+    // the same indices, checked exactly as ratios of swing counts.
+    let games: [(u64, &[u64]); 4] = [
+        (3, &[2, 1, 1]),
+        (8, &[5, 3, 2, 1, 1]),
+        (12, &[6, 4, 3, 3, 2, 1]),
+        (39, &[7, 7, 7, 7, 7, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1]),
+    ];
+    for (q, w) in games {
+        let rule = Rule::weighted(q, w.to_vec()).unwrap();
+        let power = clout::analyze::<_, u128>(&rule).unwrap();
+        let targets: Vec<f64> = (0..w.len()).map(|i| power.table().banzhaf(i)).collect();
+        let found = fit::fit(
+            &targets,
+            Options {
+                budget: 2_000_000_000,
+                max_total: 10_000,
+            },
+        )
+        .unwrap();
+        assert!(found.max_deviation < 1e-12, "[{q}; {w:?}]: {found:?}");
+        let again = Rule::weighted(found.quota, found.weights.clone()).unwrap();
+        let p2 = clout::analyze::<_, u128>(&again).unwrap();
+        let s1: Vec<u128> = power.members.iter().map(|m| m.swings).collect();
+        let s2: Vec<u128> = p2.members.iter().map(|m| m.swings).collect();
+        let (t1, t2): (u128, u128) = (s1.iter().sum(), s2.iter().sum());
+        for i in 0..w.len() {
+            assert_eq!(s1[i] * t2, s2[i] * t1, "[{q}; {w:?}] member {i}");
+        }
+    }
+}

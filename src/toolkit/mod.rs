@@ -28,8 +28,14 @@
 //! were checked to win and lose and to hold every member equally often.
 //! Counts of coalitions are exact integers (the core's wide counters).
 
+pub mod chart;
+pub mod coalitions;
+pub mod compare;
+pub mod desirability;
+pub mod fit;
 mod lp;
 pub mod profile;
+pub mod sweep;
 pub mod weighted;
 
 use std::fmt;
