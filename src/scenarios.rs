@@ -78,8 +78,8 @@ pub fn union_27_populations() -> Vec<u64> {
     let mut rng = Lcg(27);
     (0..27u64)
         .map(|i| {
-            // Roughly 84 million / (i + 1)^0.9 plus up to 3% noise, at least 400,000.
-            let base = 84_000_000.0 / ((i + 1) as f64).powf(0.9);
+            // Roughly 98 million / (i + 1)^0.9 plus up to 3% noise, at least 400,000.
+            let base = 98_000_000.0 / ((i + 1) as f64).powf(0.9);
             let noise = (rng.next_u64() % 3_000) as f64 / 100_000.0;
             ((base * (1.0 + noise)) as u64).max(400_000 + rng.next_u64() % 100_000)
         })
