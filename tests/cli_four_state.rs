@@ -230,3 +230,27 @@ fn approximate_when_exact_is_over_budget() {
     assert_eq!(refused.code, 2);
     assert!(refused.stderr.contains("over the budget"), "{}", refused.stderr);
 }
+
+#[test]
+fn union_of_27_by_exact_population_is_exact() {
+    // The decision diagram makes exact populations (a quota of 292 million)
+    // cheap: the report must be exact (swings as integers) and efficient
+    // (Shapley-Shubik sums to 1, Shapley & Shubik 1954).
+    let run = clout_with_input(&["report", "examples/union.clout", "--format", "json"], "");
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    let v: Value = serde_json::from_str(&run.stdout).expect("JSON");
+    assert_eq!(v["engine"], "diagram");
+    let members = v["members"].as_array().expect("members");
+    assert_eq!(members.len(), 27);
+    let ss: f64 = members
+        .iter()
+        .map(|m| m["shapley_shubik"].as_f64().unwrap())
+        .sum();
+    assert!((ss - 1.0).abs() < 1e-9, "{ss}");
+    assert!(members
+        .iter()
+        .all(|m| m["swings"].as_str().unwrap().parse::<u64>().is_ok()));
+    // The most populous state is never weaker than the least populous.
+    let swings = |i: usize| members[i]["swings"].as_str().unwrap().parse::<u64>().unwrap();
+    assert!(swings(0) >= swings(26));
+}
