@@ -2,15 +2,19 @@
  * tally: a firmware-style example of the clout C ABI.
  *
  * Loads a compiled rule image into static memory and decides the ballots
- * read from standard input, one per line, each the indices of the members
- * voting yes, separated by spaces or commas (an empty line is a ballot with
- * no yes votes). Every buffer is static: the program never calls malloc,
- * and gives stdio static buffers so the C library does not either.
+ * read from standard input, one per line. A two-state ballot lists the
+ * indices of the members voting yes, separated by spaces or commas (an
+ * empty line is a ballot with no yes votes). A four-state ballot starts
+ * with `=` and gives one letter per member in order: Y (yes), N (no),
+ * A (abstain) or - (absent); members beyond the letters are absent. Every
+ * buffer is static: the program never calls malloc, and gives stdio static
+ * buffers so the C library does not either.
  *
  *   tally RULE.img < ballots.txt
  *
  * Output, one line per ballot:
- *   ballot N: passes; sums S0 S1 ...; met M0 M1 ...
+ *   ballot N: passes; sums S0 S1 ...; met M0 M1 ...          (two states)
+ *   ballot N: passes; yes/no/abstain Y/N/A ...; met M0 ...   (four states)
  *   ballot N: rejected: REASON
  * Exit status: 0, or 1 when some ballot was rejected, or 2 when the image
  * cannot be loaded. Built and run by bindings-c/tests/abi.rs.
@@ -35,6 +39,8 @@ static uint8_t image[MAX_IMAGE_BYTES];
 static uint64_t rule_memory[CLOUT_RULE_HEADER_WORDS + MAX_WEIGHTS];
 static uint32_t yes[MAX_YES];
 static uint64_t sums[MAX_CONDITIONS];
+static uint8_t votes[MAX_YES];
+static clout_group_sums group_sums[MAX_CONDITIONS];
 static char line[MAX_LINE];
 static char message[CLOUT_MESSAGE_MAX];
 static char stdin_buffer[4096], stdout_buffer[4096];
@@ -96,6 +102,54 @@ static long parse_ballot(void) {
     return (long)n;
 }
 
+/* Parses `=YNA-...` from line[] into votes[]; returns the number of
+ * members given, or -1 for a letter that is not a vote. */
+static long parse_votes(void) {
+    size_t n = 0;
+    const char *p = line + 1;
+    while (*p != '\0' && *p != '\n' && *p != '\r') {
+        uint8_t v;
+        switch (*p) {
+        case 'Y': v = CLOUT_VOTE_YES; break;
+        case 'N': v = CLOUT_VOTE_NO; break;
+        case 'A': v = CLOUT_VOTE_ABSTAIN; break;
+        case '-': v = CLOUT_VOTE_ABSENT; break;
+        case ' ': p++; continue;
+        default: return -1;
+        }
+        if (n == MAX_YES) return -1;
+        votes[n++] = v;
+        p++;
+    }
+    return (long)n;
+}
+
+/* Decides one four-state ballot from line[] and prints its line. */
+static int decide_votes(const clout_rule *rule, uint32_t members, unsigned long ballot) {
+    clout_outcome outcome;
+    clout_result code;
+    uint32_t k;
+    long count = parse_votes();
+    if (count < 0) {
+        printf("ballot %lu: rejected: a vote letter other than Y, N, A or -\n", ballot);
+        return 1;
+    }
+    while ((uint32_t)count < members && count < MAX_YES) votes[count++] = CLOUT_VOTE_ABSENT;
+    code = clout_decide_votes(rule, votes, (size_t)count, group_sums, MAX_CONDITIONS, &outcome);
+    if (code != CLOUT_RESULT_OK) {
+        printf("ballot %lu: rejected: %s\n", ballot, describe(code));
+        return 1;
+    }
+    printf("ballot %lu: %s; yes/no/abstain", ballot, outcome.passed ? "passes" : "fails");
+    for (k = 0; k < outcome.conditions; k++)
+        printf(" %llu/%llu/%llu", (unsigned long long)group_sums[k].yes, (unsigned long long)group_sums[k].no,
+               (unsigned long long)group_sums[k].abstain);
+    printf("; met");
+    for (k = 0; k < outcome.conditions; k++) printf(" %u", (unsigned)((outcome.met >> k) & 1));
+    printf("\n");
+    return 0;
+}
+
 int main(int argc, char **argv) {
     const clout_rule *rule = NULL;
     clout_rule_sizes info;
@@ -135,6 +189,10 @@ int main(int argc, char **argv) {
             }
             printf("ballot %lu: rejected: line longer than %d bytes\n", ballot, MAX_LINE - 1);
             rejected = 1;
+            continue;
+        }
+        if (line[0] == '=') {
+            rejected |= decide_votes(rule, info.members, ballot);
             continue;
         }
         count = parse_ballot();

@@ -374,6 +374,26 @@ fn firmware_example_decides_ballots_from_stdin() {
         );
     }
 
+    // Four-state ballots on `present.img`: weights 2, 1, 1 and "more yes
+    // than no" (Y - N >= 1). YNA: 2 - 1 = 1 passes; YNN: 2 - 2 = 0 fails;
+    // -YA: 1 - 0 passes; --N: 0 - 1 fails; YX: not a vote letter.
+    let out = run_c(
+        &program,
+        &[&dir.join("present.img")],
+        "=YNA\n=YNN\n=-YA\n=--N\n=YX\n",
+    );
+    assert_eq!(
+        String::from_utf8_lossy(&out.stdout),
+        "rule: 3 members, 1 weight attributes, 1 conditions\n\
+         ballot 1: passes; yes/no/abstain 2/1/1; met 1\n\
+         ballot 2: fails; yes/no/abstain 2/2/0; met 0\n\
+         ballot 3: passes; yes/no/abstain 1/0/1; met 1\n\
+         ballot 4: fails; yes/no/abstain 0/1/0; met 0\n\
+         ballot 5: rejected: a vote letter other than Y, N, A or -\n",
+        "stderr: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+
     let damaged = run_c(&program, &[&dir.join("damaged-checksum.img")], "");
     assert_eq!(damaged.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&damaged.stderr);
