@@ -19,10 +19,10 @@ use clout_core::limits::{MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES};
 use clout_core::quota::{self, Bound};
 use clout_core::{Atom, Condition as CoreCondition, Error as CoreError, Linear, Node, Rule};
 
-use crate::diagnostic::{closest, Diagnostic, Span};
+use crate::diagnostic::{closest, limit, Diagnostic, Span, MAX_DIAGNOSTICS};
 use crate::syntax::{
     self, AmountValue, BlocDecl, Comparison, Declaration, Expr, Game, GroupDecl, GroupSide, GroupWord,
-    MemberDecl, NamedExpr, Threshold,
+    MemberDecl, NamedExpr, Threshold, MAX_NAME_LEN,
 };
 
 /// A compiled rule file: the members, their weights, and every rule.
@@ -201,11 +201,15 @@ impl RuleFile {
 }
 
 /// Compiles a rule file. Returns every error found.
+///
+/// At most [`MAX_DIAGNOSTICS`](crate::diagnostic::MAX_DIAGNOSTICS) errors are
+/// kept, followed by a note that counts the rest.
 pub fn compile(source: &str) -> Result<RuleFile, Vec<Diagnostic>> {
-    match syntax::parse(source)? {
+    let result = match syntax::parse(source).map_err(limit)? {
         syntax::File::Game(g) => compile_game(source, &g),
         syntax::File::Declarations(d) => Compiler::new(source).run(&d),
-    }
+    };
+    result.map_err(limit)
 }
 
 /// Drops comments and collapses white space, so that conditions print on one line.
@@ -537,12 +541,27 @@ impl<'a> Compiler<'a> {
 
     /// Registers a name; reports a duplicate and returns false.
     fn claim(&mut self, name: &str, span: Span, kind: Kind) -> bool {
+        if name.len() > MAX_NAME_LEN {
+            self.errors.push(
+                Diagnostic::error(
+                    span,
+                    format!("a name of {} bytes, over the limit of {MAX_NAME_LEN}", name.len()),
+                )
+                .with_hint("use a shorter name; a title can hold the long form"),
+            );
+            return false;
+        }
         if let Some(&(old, old_span)) = self.names.get(name) {
             let message = format!("duplicate name `{name}`");
+            // Past the diagnostics that are shown, skip the line lookup (a scan of the file).
+            let line = if self.errors.len() < MAX_DIAGNOSTICS {
+                format!(" (line {})", self.line(old_span))
+            } else {
+                String::new()
+            };
             let hint = format!(
-                "`{name}` is already {} (line {}); members, groups, blocs, attributes, definitions and rules need distinct names",
+                "`{name}` is already {}{line}; members, groups, blocs, attributes, definitions and rules need distinct names",
                 self.kind_word(old),
-                self.line(old_span)
             );
             self.errors.push(Diagnostic::error(span, message).with_hint(hint));
             return false;
@@ -710,6 +729,10 @@ impl<'a> Compiler<'a> {
     }
 
     fn suggestion(&self, word: &str, fits: impl Fn(Kind) -> bool) -> Option<String> {
+        // Past the diagnostics that are shown, skip the search (it compares every name).
+        if self.errors.len() >= MAX_DIAGNOSTICS {
+            return None;
+        }
         let candidates: Vec<&str> = self
             .names
             .iter()
@@ -1263,14 +1286,18 @@ impl<'a> Compiler<'a> {
 
     fn check_cycles(&mut self) {
         // Depth-first search over references; 0 = new, 1 = on the path, 2 = done.
+        // `height[k]` is the longest chain of references below k, so a chain
+        // declared bottom-up (d1 = d0, d2 = d1, ...) is measured too, and
+        // lowering never recurses deeper than MAX_DEPTH.
         let mut state = vec![0u8; self.named.len()];
+        let mut height = vec![0usize; self.named.len()];
         for k in 0..self.named.len() {
             let mut path = Vec::new();
-            self.visit(k, &mut state, &mut path);
+            self.visit(k, &mut state, &mut height, &mut path);
         }
     }
 
-    fn visit(&mut self, k: usize, state: &mut [u8], path: &mut Vec<usize>) {
+    fn visit(&mut self, k: usize, state: &mut [u8], height: &mut [usize], path: &mut Vec<usize>) {
         match state[k] {
             2 => return,
             1 => {
@@ -1296,6 +1323,7 @@ impl<'a> Compiler<'a> {
         }
         if path.len() > MAX_DEPTH {
             let decl = self.named[k].decl;
+            height[k] = usize::MAX;
             self.errors.push(
                 Diagnostic::error(
                     decl.name.span,
@@ -1312,11 +1340,26 @@ impl<'a> Compiler<'a> {
         if let Some(r) = &self.named[k].resolved {
             collect_refs(r, &mut refs);
         }
+        let mut below = 0usize;
         for r in refs {
-            self.visit(r, state, path);
+            self.visit(r, state, height, path);
+            below = below.max(height[r]);
         }
         path.pop();
         state[k] = 2;
+        height[k] = below.saturating_add(1);
+        if below != usize::MAX && height[k] > MAX_DEPTH {
+            // Reported once, on the first definition past the limit; those above it stay quiet.
+            let decl = self.named[k].decl;
+            self.errors.push(
+                Diagnostic::error(
+                    decl.name.span,
+                    format!("definitions nested deeper than {MAX_DEPTH}"),
+                )
+                .with_hint("flatten the chain of definitions"),
+            );
+            height[k] = usize::MAX;
+        }
     }
 
     fn lower_rule(&mut self, k: usize, declared: &[u64]) -> Option<CompiledRule> {

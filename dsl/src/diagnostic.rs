@@ -134,36 +134,96 @@ impl Diagnostic {
 
     /// `file:line:col: severity: message`, the source line with carets under
     /// the span, and the hint.
+    ///
+    /// Safe to print on a terminal whatever the source holds: control
+    /// characters and bidirectional overrides in the message, the hint and
+    /// the line are shown as `\u{fffd}`, tabs as spaces (so the carets stay
+    /// aligned), and a line longer than [`LINE_WINDOW`] characters is cut to
+    /// a window around the span, marked with `...`.
     pub fn render(&self, file: &str, source: &str) -> String {
         let (line, col) = self.line_col(source);
         let mut out = format!(
             "{file}:{line}:{col}: {}: {}\n",
             self.severity.label(),
-            self.message
+            printable(&self.message)
         );
         let start = floor_char_boundary(source, self.span.start);
         let line_start = source[..start].rfind('\n').map_or(0, |i| i + 1);
         let line_end = source[start..].find('\n').map_or(source.len(), |i| start + i);
-        let text: String = source[line_start..line_end]
+        let text: Vec<char> = source[line_start..line_end]
             .trim_end_matches('\r')
             .chars()
-            .map(|c| if c == '\t' { ' ' } else { c })
+            .map(|c| if c == '\t' { ' ' } else { shown(c) })
             .collect();
         let end = floor_char_boundary(source, self.span.end.clamp(start, line_end));
         let width = source[start..end].chars().count().max(1);
+        // Window: from a little before the span, at most LINE_WINDOW characters.
+        let first = if text.len() > LINE_WINDOW {
+            (col - 1).saturating_sub(LINE_WINDOW / 4)
+        } else {
+            0
+        };
+        let last = (first + LINE_WINDOW).min(text.len());
+        let before = if first > 0 { "..." } else { "" };
+        let after = if last < text.len() { "..." } else { "" };
+        let window: String = text[first.min(last)..last].iter().collect();
+        let width = width.min(LINE_WINDOW.saturating_sub(col - 1 - first).max(1));
         let gutter = line.to_string().len().max(4);
-        let _ = writeln!(out, "{line:>gutter$} | {text}");
+        let _ = writeln!(out, "{line:>gutter$} | {before}{window}{after}");
         let _ = writeln!(
             out,
             "{:gutter$} | {}{}",
             "",
-            " ".repeat(col - 1),
+            " ".repeat(col - 1 - first + before.len()),
             "^".repeat(width)
         );
         if let Some(hint) = &self.hint {
-            let _ = writeln!(out, "{:gutter$} = hint: {hint}", "");
+            let _ = writeln!(out, "{:gutter$} = hint: {}", "", printable(hint));
         }
         out
+    }
+}
+
+/// Longest source line, in characters, that [`Diagnostic::render`] shows whole.
+pub const LINE_WINDOW: usize = 120;
+
+/// Most diagnostics [`limit`] keeps of one file; the rest are counted in a note.
+pub const MAX_DIAGNOSTICS: usize = 100;
+
+/// Keeps the first [`MAX_DIAGNOSTICS`] diagnostics and notes how many were
+/// dropped, so a file of a hundred thousand mistakes is reported quickly.
+pub fn limit(mut diagnostics: Vec<Diagnostic>) -> Vec<Diagnostic> {
+    if diagnostics.len() > MAX_DIAGNOSTICS {
+        let dropped = diagnostics.len() - MAX_DIAGNOSTICS;
+        let at = diagnostics[MAX_DIAGNOSTICS].span;
+        diagnostics.truncate(MAX_DIAGNOSTICS);
+        diagnostics.push(
+            Diagnostic::note(at, format!("{dropped} more errors not shown"))
+                .with_hint("fix the errors above and check the file again"),
+        );
+    }
+    diagnostics
+}
+
+/// A character as it may be shown on a terminal: control characters and
+/// bidirectional formatting characters (which can reorder or hide text)
+/// become U+FFFD.
+fn shown(c: char) -> char {
+    let bidi =
+        matches!(c, '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{200e}' | '\u{200f}' | '\u{061c}');
+    if (c.is_control() && c != '\n') || bidi {
+        '\u{fffd}'
+    } else {
+        c
+    }
+}
+
+/// `text` with [`shown`] applied to every character.
+fn printable(text: &str) -> std::borrow::Cow<'_, str> {
+    if text.chars().all(|c| shown(c) == c) {
+        std::borrow::Cow::Borrowed(text)
+    } else {
+        std::borrow::Cow::Owned(text.chars().map(shown).collect())
     }
 }
 
@@ -175,9 +235,12 @@ pub fn render_all(diagnostics: &[Diagnostic], file: &str, source: &str) -> Strin
 /// The candidate closest to `word` by edit distance, if close enough to be a
 /// likely typo (at most a third of the word's length, and at least 1).
 pub fn closest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
-    let limit = (word.chars().count() / 3).max(1);
+    let len = word.chars().count();
+    let limit = (len / 3).max(1);
     candidates
         .into_iter()
+        // Lengths that differ by more than the limit cannot be close: skip the O(|a| |b|) distance.
+        .filter(|c| c.len().abs_diff(len) <= limit * 4 && c.chars().count().abs_diff(len) <= limit)
         .map(|c| (edit_distance(word, c), c))
         .filter(|&(d, _)| d <= limit)
         .min_by_key(|&(d, _)| d)

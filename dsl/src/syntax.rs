@@ -30,6 +30,48 @@ pub const MAX_NESTING: usize = 64;
 /// Most decimals in a percentage (so that `10^(decimals+2)` fits in `u64`).
 pub const MAX_DECIMALS: usize = 15;
 
+/// Longest source accepted, in bytes (8 MiB): a body at the core's member
+/// limit, one line per member, takes a few MiB; parsing stays within seconds.
+pub const MAX_SOURCE_LEN: usize = 8 << 20;
+
+/// Longest declared name, in bytes.
+pub const MAX_NAME_LEN: usize = 128;
+
+/// Checks a file's raw bytes before compiling: at most [`MAX_SOURCE_LEN`]
+/// bytes of UTF-8. The error points at the first byte that is not UTF-8 (or
+/// at the limit); render it against `String::from_utf8_lossy(bytes)`, whose
+/// text up to that byte is the same.
+pub fn decode(bytes: &[u8]) -> Result<&str, Diagnostic> {
+    if bytes.len() > MAX_SOURCE_LEN {
+        let at = match std::str::from_utf8(&bytes[..MAX_SOURCE_LEN]) {
+            Ok(_) => MAX_SOURCE_LEN,
+            Err(e) => e.valid_up_to(),
+        };
+        return Err(too_long(at));
+    }
+    std::str::from_utf8(bytes).map_err(|e| {
+        let at = e.valid_up_to();
+        let len = e.error_len().unwrap_or(bytes.len() - at).max(1);
+        let shown: Vec<String> = bytes[at..at + len].iter().map(|b| format!("0x{b:02X}")).collect();
+        Diagnostic::error(
+            Span::new(at, at + 1),
+            format!(
+                "the file is not UTF-8 text: byte {} cannot start or continue a character",
+                shown.join(" ")
+            ),
+        )
+        .with_hint("save the file as UTF-8 (rule files are text; binary data and UTF-16 are refused)")
+    })
+}
+
+fn too_long(at: usize) -> Diagnostic {
+    Diagnostic::error(
+        Span::new(at, at + 1),
+        format!("the file is longer than the limit of {MAX_SOURCE_LEN} bytes (8 MiB)"),
+    )
+    .with_hint("a rule file this large is not a rule; model large chambers as groups with `members NAME xK`")
+}
+
 /// A name with its place in the source.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Name {
@@ -328,6 +370,13 @@ pub enum AmountValue {
 ///
 /// Returns every number error of the file, or the first syntax error.
 pub fn parse(source: &str) -> Result<File, Vec<Diagnostic>> {
+    if source.len() > MAX_SOURCE_LEN {
+        let mut at = MAX_SOURCE_LEN;
+        while !source.is_char_boundary(at) {
+            at -= 1;
+        }
+        return Err(vec![too_long(at)]);
+    }
     if let Some(d) = nesting_error(source) {
         return Err(vec![d]);
     }

@@ -4,6 +4,7 @@
 use std::path::Path;
 
 use clout_dsl::diagnostic::closest;
+use clout_dsl::syntax::{decode, MAX_SOURCE_LEN};
 use clout_dsl::{compile, render_all, CompiledRule, RuleFile};
 
 use super::Failure;
@@ -28,17 +29,18 @@ impl Input {
     pub fn load(file: Option<&Path>, game: Option<&str>, demo_allowed: bool) -> Result<Input, Failure> {
         match (file, game) {
             (Some(path), _) if path.as_os_str() == "-" => {
-                let mut source = String::new();
-                std::io::Read::read_to_string(&mut std::io::stdin(), &mut source).map_err(|e| {
+                let bytes = read_bounded(std::io::stdin()).map_err(|e| {
                     Failure::input(format!("cannot read standard input: {}", describe_io(&e)))
                 })?;
-                Input::compile("<stdin>".to_string(), source, false)
+                Input::compile("<stdin>".to_string(), text(bytes, "<stdin>")?, false)
             }
             (Some(path), _) => {
-                let source = std::fs::read_to_string(path).map_err(|e| {
+                let bytes = std::fs::File::open(path).and_then(read_bounded).map_err(|e| {
                     Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e)))
                 })?;
-                Input::compile(path.display().to_string(), source, false)
+                let name = path.display().to_string();
+                let source = text(bytes, &name)?;
+                Input::compile(name, source, false)
             }
             (None, Some(game)) => Input::compile("--game".to_string(), game.to_string(), false),
             (None, None) if demo_allowed => Input::compile("demo".to_string(), DEMO.to_string(), true),
@@ -89,6 +91,26 @@ impl Input {
             (Some(t), false) => t.clone(),
             (None, _) if self.name == "--game" => "weighted game given by --game".to_string(),
             (None, _) => self.name.clone(),
+        }
+    }
+}
+
+/// Reads at most one byte more than the language accepts, so a huge or
+/// endless input (`/dev/zero`) is refused without reading it all.
+fn read_bounded(reader: impl std::io::Read) -> std::io::Result<Vec<u8>> {
+    let mut bytes = Vec::new();
+    std::io::Read::read_to_end(&mut reader.take(MAX_SOURCE_LEN as u64 + 1), &mut bytes)?;
+    Ok(bytes)
+}
+
+/// The bytes as text, or the error at the first byte that is not UTF-8 (or past the size limit).
+fn text(bytes: Vec<u8>, name: &str) -> Result<String, Failure> {
+    match decode(&bytes) {
+        Ok(_) => Ok(String::from_utf8(bytes).unwrap_or_default()),
+        Err(d) => {
+            let mut text = d.render(name, &String::from_utf8_lossy(&bytes));
+            text.push_str(&format!("1 error in {name}\n"));
+            Err(Failure::rendered(text))
         }
     }
 }
