@@ -13,6 +13,14 @@ mod input;
 mod progress;
 mod report;
 mod text;
+// The drafting commands (clout::toolkit).
+mod coalitions;
+mod compare;
+mod drafting;
+mod fit;
+mod order;
+mod simplify;
+mod sweep;
 
 use std::io::Write;
 use std::path::PathBuf;
@@ -50,6 +58,18 @@ enum Command {
     Compile(CompileArgs),
     /// Show what a rule image holds and whether it is intact (exit 2 when damaged).
     Inspect(InspectArgs),
+    /// Dummies, whether the rule is one weighted vote (least integer weights), or a proof that it is not.
+    Simplify(simplify::SimplifyArgs),
+    /// Whether two rules are the same; if not, a smallest coalition where they differ and the power changes.
+    Compare(compare::CompareArgs),
+    /// Power indices and probability of passage as a quota moves (text, CSV, SVG chart).
+    Sweep(sweep::SweepArgs),
+    /// Integer weights and a quota whose Banzhaf index is closest to target shares of power.
+    Fit(fit::FitArgs),
+    /// List the minimal winning or minimal blocking coalitions, with their number.
+    Coalitions(coalitions::CoalitionsArgs),
+    /// Members ordered by influence (Isbell's desirability relation) and the classes of symmetric members.
+    Order(order::OrderArgs),
 }
 
 #[derive(Args)]
@@ -286,6 +306,12 @@ pub fn main() -> ExitCode {
         Command::Demo => Ok(Outcome::ok(input::DEMO.to_string())),
         Command::Compile(a) => image::compile(&a),
         Command::Inspect(a) => image::inspect(&a),
+        Command::Simplify(a) => simplify::run(&a),
+        Command::Compare(a) => compare::run(&a),
+        Command::Sweep(a) => sweep::run(&a),
+        Command::Fit(a) => fit::run(&a),
+        Command::Coalitions(a) => coalitions::run(&a),
+        Command::Order(a) => order::run(&a),
     };
     let outcome = outcome.unwrap_or_else(|f| Outcome {
         stdout: String::new(),

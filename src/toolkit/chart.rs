@@ -53,7 +53,7 @@ const PALETTE: [&str; 10] = [
 ];
 const DASHES: [&str; 3] = ["", "6 3", "2 3"];
 
-const WIDTH: f64 = 980.0;
+const WIDTH: f64 = 1040.0;
 const LEFT: f64 = 80.0;
 const PLOT_WIDTH: f64 = 600.0;
 const TOP: f64 = 70.0;
@@ -81,7 +81,10 @@ pub fn svg(chart: &Chart) -> String {
         r##"<text class="note" x="{LEFT}" y="48" font-size="11" fill="#555">{}</text>"##,
         escape(&chart.note)
     );
-    let (x0, x1) = range(&chart.x);
+    let (lo, hi) = range(&chart.x);
+    // Widen to whole tick steps, so both ends carry a label.
+    let step = tick_step(hi - lo);
+    let (x0, x1) = ((lo / step).floor() * step, (hi / step).ceil() * step);
     let x_ticks = ticks(x0, x1);
     let px = |x: f64| LEFT + (x - x0) / (x1 - x0).max(f64::MIN_POSITIVE) * PLOT_WIDTH;
     for (k, panel) in chart.panels.iter().enumerate() {
@@ -144,6 +147,12 @@ pub fn svg(chart: &Chart) -> String {
             } else {
                 ("#000000", "")
             };
+            // Earlier lines are wider, so a line hidden under a later one still shows at its edges.
+            let width = if panel.shared {
+                (4.0 - 0.6 * s as f64).max(1.5)
+            } else {
+                2.5
+            };
             let points: Vec<String> = chart
                 .x
                 .iter()
@@ -157,7 +166,7 @@ pub fn svg(chart: &Chart) -> String {
             };
             let _ = writeln!(
                 out,
-                r#"<g class="series" data-series="{}"><polyline points="{}" fill="none" stroke="{colour}" stroke-width="2"{dash_attr}/>"#,
+                r#"<g class="series" data-series="{}"><polyline points="{}" fill="none" stroke="{colour}" stroke-width="{width:.1}" stroke-linejoin="round"{dash_attr}/>"#,
                 escape(&series.label),
                 points.join(" ")
             );
@@ -234,19 +243,27 @@ fn nice_ceiling(v: f64) -> f64 {
         .unwrap_or(10.0 * p)
 }
 
+/// A round step giving about five ticks over `span`.
+fn tick_step(span: f64) -> f64 {
+    if span <= 0.0 || !span.is_finite() {
+        return 1.0;
+    }
+    let raw = span / 5.0;
+    let p = 10f64.powf(raw.log10().floor());
+    [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|m| m * p)
+        .find(|&s| s >= raw)
+        .unwrap_or(10.0 * p)
+}
+
 /// About five round ticks covering [lo, hi].
 fn ticks(lo: f64, hi: f64) -> Vec<f64> {
     let span = hi - lo;
     if span <= 0.0 || !span.is_finite() {
         return vec![lo];
     }
-    let raw = span / 5.0;
-    let p = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
-        .iter()
-        .map(|m| m * p)
-        .find(|&s| s >= raw)
-        .unwrap_or(10.0 * p);
+    let step = tick_step(span);
     let first = (lo / step).ceil() * step;
     let mut out = Vec::new();
     let mut k = 0.0;

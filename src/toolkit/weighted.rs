@@ -41,7 +41,9 @@ const FIRST_ROUND: usize = 128;
 /// Violated constraints of each kind one round adds.
 const PER_ROUND: usize = 32;
 /// Integer programs the intersection search may solve.
-const INTERSECTION_PROGRAMS: usize = 400;
+const INTERSECTION_PROGRAMS: usize = 600;
+/// Failed attempts in a row after which one game of the intersection stops growing.
+const GROUP_FAILURES: usize = 30;
 
 /// How the table groups members.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -441,27 +443,35 @@ fn intersection(
     let mut programs = 0;
     let mut rounds = 0;
     while let Some(&first) = uncovered.first() {
-        let mut group = vec![first];
         programs += 1;
         let Found::Weights {
             mut weights,
             mut quota,
             ..
-        } = separate_all(cost, above, below, &group, &mut rounds)?
+        } = separate_all(cost, above, below, &[first], &mut rounds)?
         else {
             return Err(Error::Solver(
                 "one losing coalition could not be separated from the winning ones".to_string(),
             ));
         };
-        for &y in &uncovered[1..] {
-            if dot(&weights, &below[y]) < u128::from(quota) {
-                group.push(y);
-                continue;
-            }
-            if programs >= INTERSECTION_PROGRAMS {
-                continue;
-            }
+        // Grow the game: try the losing profiles it misses by the least first.
+        let mut tried = vec![false; below.len()];
+        let mut failures = 0;
+        while programs < INTERSECTION_PROGRAMS && failures < GROUP_FAILURES {
+            let quota128 = u128::from(quota);
+            let next = uncovered
+                .iter()
+                .copied()
+                .filter(|&y| !tried[y] && dot(&weights, &below[y]) >= quota128)
+                .min_by_key(|&y| (dot(&weights, &below[y]) - quota128, y));
+            let Some(y) = next else { break };
+            tried[y] = true;
             programs += 1;
+            let mut group: Vec<usize> = uncovered
+                .iter()
+                .copied()
+                .filter(|&z| dot(&weights, &below[z]) < quota128)
+                .collect();
             group.push(y);
             match separate_all(cost, above, below, &group, &mut rounds)? {
                 Found::Weights {
@@ -469,13 +479,18 @@ fn intersection(
                 } => {
                     weights = w;
                     quota = q;
+                    failures = 0;
                 }
-                Found::Infeasible { .. } => {
-                    group.pop();
-                }
+                Found::Infeasible { .. } => failures += 1,
             }
         }
+        let before = uncovered.len();
         uncovered.retain(|&y| dot(&weights, &below[y]) >= u128::from(quota));
+        if uncovered.len() == before {
+            return Err(Error::Solver(
+                "a weighted game of the intersection covers nothing".to_string(),
+            ));
+        }
         parts.push((weights, quota));
     }
     let mut all_hold = true;

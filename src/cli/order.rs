@@ -1,0 +1,109 @@
+//! `clout order`: the members ordered by influence under Isbell's
+//! desirability relation, whether the order is complete, and the classes
+//! of symmetric members; each incomparable pair with coalitions that show
+//! it. See `clout::toolkit::desirability`.
+
+use std::fmt::Write;
+
+use clap::Args;
+use clout::toolkit::desirability::{self, Witness};
+use clout::toolkit::profile::ProfileTable;
+use clout::toolkit::PROFILE_LIMIT;
+use clout_dsl::RuleFile;
+
+use super::drafting::{self, label, names};
+use super::input::Input;
+use super::report::CAUTION;
+use super::{Failure, Outcome, Source};
+
+#[derive(Args)]
+pub struct OrderArgs {
+    #[command(flatten)]
+    source: Source,
+}
+
+pub fn run(args: &OrderArgs) -> Result<Outcome, Failure> {
+    let s = &args.source;
+    let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
+    let rule = input.rule(s.rule.as_deref())?;
+    let file = &input.file;
+    let table = ProfileTable::of_rule(&rule.rule, drafting::groups(rule), PROFILE_LIMIT)
+        .map_err(|e| drafting::failure(&rule.name, e))?;
+    let order = desirability::order(&table);
+    let mut out = drafting::heading("Order of influence", &input, rule);
+    let _ = writeln!(
+        out,
+        "Isbell's desirability relation: A is at least as desirable as B when, in every coalition\n\
+         without both, putting A in place of B never turns a pass into a fail. Members desirable\n\
+         both ways are symmetric: exchanging them changes no outcome.\n"
+    );
+    let k = order.classes.len();
+    if order.complete() {
+        let _ = writeln!(
+            out,
+            "Complete: every two members are comparable. From most to least desirable:"
+        );
+    } else {
+        let _ = writeln!(
+            out,
+            "Not complete: {} of classes {} not comparable, so the rule is not a weighted\n\
+             game (weighted games always have a complete order). Classes, more desirable first:",
+            match order.incomparable.len() {
+                1 => "one pair".to_string(),
+                k => format!("{k} pairs"),
+            },
+            if order.incomparable.len() == 1 {
+                "is"
+            } else {
+                "are"
+            }
+        );
+    }
+    for (a, class) in order.classes.iter().enumerate() {
+        let sym = if class.len() > 1 {
+            format!("  ({} symmetric members)", drafting::thousands(class.len()))
+        } else {
+            String::new()
+        };
+        let _ = writeln!(out, "  {}. {}{sym}", a + 1, names(file, class));
+        if !order.complete() {
+            let below: Vec<String> = (0..k)
+                .filter(|&b| order.strictly_above(a, b))
+                .map(|b| (b + 1).to_string())
+                .collect();
+            if !below.is_empty() {
+                let _ = writeln!(out, "     more desirable than {}", below.join(", "));
+            }
+        }
+    }
+    if order.complete() && (2..=6).contains(&k) {
+        let chain: Vec<String> = order.classes.iter().map(|c| label(file, c)).collect();
+        let _ = writeln!(out, "\n  {}", chain.join("  >  "));
+    }
+    for (a, b, w1, w2) in &order.incomparable {
+        let _ = writeln!(out, "\nClasses {} and {} are not comparable:", a + 1, b + 1);
+        witness(&mut out, file, w1);
+        witness(&mut out, file, w2);
+    }
+    if k == 1 {
+        let _ = writeln!(out, "\nAll members are symmetric: the rule treats them alike.");
+    }
+    let _ = writeln!(out, "\n{CAUTION}");
+    Ok(Outcome::ok(out))
+}
+
+fn witness(out: &mut String, file: &RuleFile, w: &Witness) {
+    let (yes, no) = (
+        &file.members[w.joins_and_wins].name,
+        &file.members[w.joins_and_loses].name,
+    );
+    let _ = if w.coalition.is_empty() {
+        writeln!(out, "  {yes} alone passes, {no} alone fails")
+    } else {
+        writeln!(
+            out,
+            "  with {}: adding {yes} passes, adding {no} fails",
+            names(file, &w.coalition)
+        )
+    };
+}

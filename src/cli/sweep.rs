@@ -1,0 +1,320 @@
+//! `clout sweep`: every member's Banzhaf and Shapley-Shubik index and the
+//! probability of passage as the quota of the rule's conditions on one
+//! attribute moves, as a text table, CSV, and an SVG chart. Members with
+//! identical weights form one series. See `clout::toolkit::sweep`.
+
+use std::fmt::Write;
+use std::path::PathBuf;
+
+use clap::{Args, ValueEnum};
+use clout::toolkit::chart::{self, Chart, Panel, Series};
+use clout::toolkit::sweep::{self, Level, Point};
+use clout_dsl::{AttributeKind, CompiledRule};
+
+use super::drafting::{self, label, names};
+use super::input::Input;
+use super::report::{CAUTION, MODEL};
+use super::text::{Align, Table};
+use super::{parse_steps, Failure, Outcome, Source};
+
+/// Most points of one sweep.
+const MAX_POINTS: usize = 201;
+
+#[derive(Args)]
+pub struct SweepArgs {
+    #[command(flatten)]
+    source: Source,
+    /// The attribute whose conditions move together (default: the rule's only weighted attribute).
+    #[arg(long, value_name = "NAME")]
+    attr: Option<String>,
+    /// Move only this condition: its number in the rule, 1 for the first (as `clout report` lists them).
+    #[arg(long, value_name = "N")]
+    condition: Option<usize>,
+    /// Start of the range: a share such as 50% or an integer quota such as 58.
+    #[arg(long, value_name = "QUOTA", default_value = "50%", value_parser = Level::parse)]
+    from: Level,
+    /// End of the range, in the same forms.
+    #[arg(long, value_name = "QUOTA", default_value = "100%", value_parser = Level::parse)]
+    to: Level,
+    /// Step: a share such as 1% or an integer such as 2; repeated quotas are dropped.
+    #[arg(long, value_name = "STEP", default_value = "1%", value_parser = Level::parse)]
+    step: Level,
+    /// Also write the chart as SVG to this file.
+    #[arg(long, value_name = "PATH")]
+    svg: Option<PathBuf>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = SweepFormat::Text)]
+    format: SweepFormat,
+    /// Most elementary steps the exact analysis of each point may take.
+    #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
+    budget: u128,
+}
+
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum SweepFormat {
+    Text,
+    Csv,
+}
+
+pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
+    let s = &args.source;
+    let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
+    let rule = input.rule(s.rule.as_deref())?;
+    let (attribute, atoms) = moving(rule, args.attr.as_deref(), args.condition)?;
+    let total = rule.rule.total(attribute);
+    let attr_name = &rule.attributes[attribute].name;
+    let quotas = sweep::quotas(total, args.from, args.to, args.step, MAX_POINTS)
+        .map_err(|e| drafting::failure(&rule.name, e))?;
+    let points = sweep::sweep(&rule.rule, &atoms, &quotas, args.budget)
+        .map_err(|e| drafting::failure(&rule.name, e))?;
+    // One series per set of members whose figures agree at every point.
+    let groups = clout::toolkit::profile::group_by_key(rule.rule.members(), |i| {
+        points
+            .iter()
+            .flat_map(|p| {
+                let m = &p.power.members[i];
+                [m.banzhaf.to_bits(), m.shapley_shubik.to_bits()]
+            })
+            .collect::<Vec<u64>>()
+    });
+    let labels: Vec<String> = groups.iter().map(|g| label(&input.file, g)).collect();
+    let share = |q: u64| q as f64 / total as f64 * 100.0;
+    if let Some(path) = &args.svg {
+        let moved: Vec<&str> = atoms.iter().map(|&k| rule.conditions[k].text.as_str()).collect();
+        let c = Chart {
+            title: format!("{}, rule `{}`: power as the quota of {attr_name} moves", input.title(), rule.name),
+            note: format!(
+                "Moving: {}. Each member votes yes or no independently with equal chance; figures are each member's.",
+                moved.join("; ")
+            ),
+            x_label: format!("quota of {attr_name}, % of the total ({})", drafting::thousands(total)),
+            x: points.iter().map(|p| share(p.quota)).collect(),
+            panels: vec![
+                panel("Banzhaf index (normalized)", &groups, &labels, &points, |p, i| p.power.members[i].banzhaf),
+                panel("Shapley-Shubik index", &groups, &labels, &points, |p, i| p.power.members[i].shapley_shubik),
+                Panel {
+                    y_label: "Probability of passage".to_string(),
+                    series: vec![Series {
+                        label: "probability of passage".to_string(),
+                        values: points.iter().map(|p| p.power.passage_probability).collect(),
+                    }],
+                    shared: false,
+                },
+            ],
+        };
+        std::fs::write(path, chart::svg(&c))
+            .map_err(|e| Failure::input(format!("cannot write `{}`: {e}", path.display())))?;
+    }
+    let out = match args.format {
+        SweepFormat::Csv => csv(&groups, &input, &points, total),
+        SweepFormat::Text => {
+            let mut out = drafting::heading("Sweep", &input, rule);
+            let moved: Vec<String> = atoms
+                .iter()
+                .map(|&k| format!("condition {} `{}`", k + 1, rule.conditions[k].text))
+                .collect();
+            let _ = writeln!(
+                out,
+                "Moving {} (on {attr_name}, total {}) through {} quotas from {} to {}.\n\
+                 Each row is the rule with that quota; members with equal figures at every quota\n\
+                 share a column, and the figures are each member's.\n",
+                moved.join(" and "),
+                drafting::thousands(total),
+                points.len(),
+                drafting::thousands(quotas[0]),
+                drafting::thousands(*quotas.last().unwrap_or(&0))
+            );
+            for (title, pick) in [
+                ("Banzhaf index (normalized)", 0usize),
+                ("Shapley-Shubik index", 1),
+            ] {
+                let _ = writeln!(out, "{title}");
+                let mut head = vec![
+                    ("quota".to_string(), Align::Right),
+                    ("share".to_string(), Align::Right),
+                ];
+                if pick == 0 {
+                    head.push(("passage".to_string(), Align::Right));
+                }
+                head.extend(labels.iter().map(|l| (l.clone(), Align::Right)));
+                let mut t = Table::new(head);
+                for p in &points {
+                    let mut row = vec![drafting::thousands(p.quota), format!("{:.1}%", share(p.quota))];
+                    if pick == 0 {
+                        row.push(format!("{:.4}", p.power.passage_probability));
+                    }
+                    for g in &groups {
+                        let m = &p.power.members[g[0]];
+                        row.push(format!(
+                            "{:.4}",
+                            if pick == 0 { m.banzhaf } else { m.shapley_shubik }
+                        ));
+                    }
+                    t.push(row);
+                }
+                out.push_str(&t.render());
+                out.push('\n');
+            }
+            if let Some(path) = &args.svg {
+                let _ = writeln!(out, "Chart written to {}.", path.display());
+            }
+            let _ = writeln!(
+                out,
+                "passage = probability of passage (share of all ways to vote that pass).\n{MODEL}\n{CAUTION}"
+            );
+            out
+        }
+    };
+    Ok(Outcome::ok(out))
+}
+
+fn panel(
+    title: &str,
+    groups: &[Vec<usize>],
+    labels: &[String],
+    points: &[Point],
+    value: impl Fn(&Point, usize) -> f64,
+) -> Panel {
+    Panel {
+        y_label: title.to_string(),
+        series: groups
+            .iter()
+            .zip(labels)
+            .map(|(g, l)| Series {
+                label: if g.len() > 1 {
+                    format!("{l} (×{})", g.len())
+                } else {
+                    l.clone()
+                },
+                values: points.iter().map(|p| value(p, g[0])).collect(),
+            })
+            .collect(),
+        shared: true,
+    }
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn csv(groups: &[Vec<usize>], input: &Input, points: &[Point], total: u64) -> String {
+    let mut out = String::from("quota,share,passage_probability");
+    let full: Vec<String> = groups.iter().map(|g| names(&input.file, g)).collect();
+    for kind in ["banzhaf", "shapley_shubik"] {
+        for l in &full {
+            out.push(',');
+            out.push_str(&csv_field(&format!("{kind}:{l}")));
+        }
+    }
+    out.push('\n');
+    for p in points {
+        let _ = write!(
+            out,
+            "{},{},{}",
+            p.quota,
+            p.quota as f64 / total as f64,
+            p.power.passage_probability
+        );
+        for g in groups {
+            let _ = write!(out, ",{}", p.power.members[g[0]].banzhaf);
+        }
+        for g in groups {
+            let _ = write!(out, ",{}", p.power.members[g[0]].shapley_shubik);
+        }
+        out.push('\n');
+    }
+    out
+}
+
+/// The attribute and the conditions (atom indices) that move.
+fn moving(
+    rule: &CompiledRule,
+    attr: Option<&str>,
+    condition: Option<usize>,
+) -> Result<(usize, Vec<usize>), Failure> {
+    let atoms = rule.rule.atoms();
+    let listing = || {
+        rule.conditions
+            .iter()
+            .zip(atoms)
+            .enumerate()
+            .map(|(k, (c, a))| {
+                format!(
+                    "{}: `{}` on {}",
+                    k + 1,
+                    c.text,
+                    rule.attributes[usize::from(a.attribute)].name
+                )
+            })
+            .collect::<Vec<_>>()
+            .join("; ")
+    };
+    if let Some(k) = condition {
+        let Some(atom) = k.checked_sub(1).and_then(|i| atoms.get(i)) else {
+            return Err(Failure::input(format!(
+                "rule `{}` has no condition {k}\n  = hint: its conditions are {}",
+                rule.name,
+                listing()
+            )));
+        };
+        let a = usize::from(atom.attribute);
+        if let Some(name) = attr {
+            if rule.attributes[a].name != name {
+                return Err(Failure::input(format!(
+                    "condition {k} of rule `{}` is on {}, not on {name}",
+                    rule.name, rule.attributes[a].name
+                )));
+            }
+        }
+        return Ok((a, vec![k - 1]));
+    }
+    let used: Vec<usize> = {
+        let mut v: Vec<usize> = atoms.iter().map(|a| usize::from(a.attribute)).collect();
+        v.sort_unstable();
+        v.dedup();
+        v
+    };
+    let attribute = match attr {
+        Some(name) => {
+            let Some(a) = used.iter().copied().find(|&a| rule.attributes[a].name == name) else {
+                let names: Vec<&str> = used.iter().map(|&a| rule.attributes[a].name.as_str()).collect();
+                return Err(Failure::input(format!(
+                    "no condition of rule `{}` is on `{name}`\n  = hint: its conditions are on {}",
+                    rule.name,
+                    names.join(", ")
+                )));
+            };
+            a
+        }
+        None => {
+            let declared: Vec<usize> = used
+                .iter()
+                .copied()
+                .filter(|&a| rule.attributes[a].kind == AttributeKind::Declared)
+                .collect();
+            match (declared.as_slice(), used.as_slice()) {
+                ([a], _) | ([], [a]) => *a,
+                _ => {
+                    return Err(Failure::input(format!(
+                        "rule `{}` has conditions on several attributes: say which moves\n  = hint: \
+                         --attr NAME moves every condition on NAME, --condition N moves one; the \
+                         conditions are {}",
+                        rule.name,
+                        listing()
+                    )))
+                }
+            }
+        }
+    };
+    let moved = atoms
+        .iter()
+        .enumerate()
+        .filter(|(_, a)| usize::from(a.attribute) == attribute)
+        .map(|(k, _)| k)
+        .collect();
+    Ok((attribute, moved))
+}
