@@ -17,10 +17,10 @@ use super::report::{CAUTION, MODEL};
 use super::text::{Align, Table};
 use super::{Failure, Outcome};
 
-/// Search steps per second of `--seconds` (measured on the project's
-/// 2-core machine, release build: about 1.5e9 steps per second on one core,
-/// so about 1 s of work per second asked).
-const STEPS_PER_SECOND: f64 = 1.5e9;
+/// Search steps per second of `--seconds`: measured on the project's 2-core
+/// machine (release build, one core: 1.6e9 steps of a 14-member fit in 6.5 s).
+/// Slower machines take longer for the same answer.
+const STEPS_PER_SECOND: f64 = 2.5e8;
 
 #[derive(Args)]
 pub struct FitArgs {
@@ -171,7 +171,8 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
     );
     let _ = writeln!(
         out,
-        "\nMembers are p1..p{} in `--game` order; indices from the core's exact engines.\n{MODEL}\n{CAUTION}",
+        "\nThe notation lists the weights in the order of the table (`--game` reads it, naming the\n\
+         members p1..p{}). Indices of the weighted vote are from the core's exact engines.\n{MODEL}\n{CAUTION}",
         t.names.len()
     );
     Ok(Outcome::ok(out))

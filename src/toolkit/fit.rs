@@ -223,27 +223,30 @@ impl Search<'_> {
             return None;
         }
         let table = SwingTable::new(weights, total / 2 + 1..=total, &mut self.steps)?;
-        let mut best: Option<Candidate> = None;
+        // Same weights for every quota: compare distances only (ties keep the lower quota).
+        let mut best: Option<(f64, f64, usize)> = None;
         for k in 0..(total - total / 2) as usize {
-            let b = table.banzhaf(k);
-            let (squares, max) = b
+            let row = &table.swings[k * table.n..(k + 1) * table.n];
+            let sum: f64 = row.iter().sum();
+            let (squares, max) = row
                 .iter()
                 .zip(self.targets)
                 .fold((0.0f64, 0.0f64), |(s, m), (x, t)| {
-                    (s + (x - t) * (x - t), m.max((x - t).abs()))
+                    let d = if sum == 0.0 { -t } else { x / sum - t };
+                    (s + d * d, m.max(d.abs()))
                 });
-            let c = Candidate {
-                weights: weights.to_vec(),
-                quota: table.first + k as u64,
-                banzhaf: b,
-                squares,
-                max,
-                total,
-            };
-            if best.as_ref().is_none_or(|b| c.better_than(b)) {
-                best = Some(c);
+            if best.is_none_or(|(s, m, _)| (squares, max) < (s, m)) {
+                best = Some((squares, max, k));
             }
         }
+        let best = best.map(|(squares, max, k)| Candidate {
+            weights: weights.to_vec(),
+            quota: table.first + k as u64,
+            banzhaf: table.banzhaf(k),
+            squares,
+            max,
+            total,
+        });
         let c = best?;
         if self.best.as_ref().is_none_or(|b| c.better_than(b)) {
             self.best = Some(c.clone());
