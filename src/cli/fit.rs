@@ -67,9 +67,11 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
     let t = targets(args)?;
     if t.names.len() > fit::MAX_MEMBERS {
         return Err(Failure::input(format!(
-            "{}: {} members, more than the fit handles ({})",
+            "{}: {} members, more than the fit handles ({})\n  = hint: the search counts swings \
+             exactly in 128-bit integers, which bounds it to {} members",
             t.from,
             t.names.len(),
+            fit::MAX_MEMBERS,
             fit::MAX_MEMBERS
         )));
     }
