@@ -31,7 +31,7 @@ impl<C: Counter> Analysis<C> {
 /// What to compute and within which limits.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Options {
-    /// Force this engine instead of planning.
+    /// Force this engine instead of planning (still within `budget` and `memory`).
     pub engine: Option<Engine>,
     /// Every index, or swing counts only.
     pub scope: Scope,
@@ -98,6 +98,13 @@ pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
             });
             p.engine = engine;
             p.cost = engine::cost_for(rule, engine, options.scope)?;
+            // A forced engine keeps to the budget too ([`analyze_with`] lifts it).
+            if p.cost > options.budget {
+                return Err(Error::TooCostly {
+                    estimate: p.cost,
+                    budget: options.budget,
+                });
+            }
             let needed = engine::memory_for(rule, engine, options.scope, limits.count_bytes)?;
             if needed > options.memory && engine != Engine::Diagram {
                 // The diagram's estimate is an upper bound; it checks its real size itself.

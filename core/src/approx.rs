@@ -17,6 +17,13 @@
 //! Every figure here is an estimate and is labelled with its half-width;
 //! nothing in this module is exact.
 
+// Hot loops index their tables and add bounded integers directly (checked
+// arithmetic would cost the engines' speed). Why nothing is out of range or
+// overflows, listed in DEVELOPERS.md ("Panics"):
+// sampling indices are below the member count; hit counters are u64 and count at
+// most `max_samples` draws each (a u64), so they cannot pass u64::MAX; the rest is f64.
+#![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
+
 use alloc::vec;
 use alloc::vec::Vec;
 

@@ -37,12 +37,15 @@ impl<const W: usize> Ballot<W> {
 
     /// From the three groups; a member in two groups is an error.
     pub fn new(yes: Coalition<W>, no: Coalition<W>, abstain: Coalition<W>) -> Result<Self, Error> {
-        for i in 0..W {
-            let (y, n, a) = (yes.words()[i], no.words()[i], abstain.words()[i]);
+        let words = yes.words().iter().zip(no.words()).zip(abstain.words());
+        for (i, ((&y, &n), &a)) in words.enumerate() {
             let clash = (y & n) | (y & a) | (n & a);
             if clash != 0 {
                 return Err(Error::BallotOverlap {
-                    member: i * 64 + clash.trailing_zeros() as usize,
+                    // i < W: below the capacity, a constant that fits.
+                    member: i
+                        .saturating_mul(64)
+                        .saturating_add(clash.trailing_zeros() as usize),
                 });
             }
         }
@@ -71,7 +74,7 @@ impl<const W: usize> Ballot<W> {
     pub fn set(&mut self, i: usize, vote: Vote) -> Result<(), Error> {
         if i >= Coalition::<W>::CAPACITY {
             return Err(Error::BallotMismatch {
-                members: i + 1,
+                members: i.saturating_add(1),
                 capacity: Coalition::<W>::CAPACITY,
             });
         }

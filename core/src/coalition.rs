@@ -39,11 +39,13 @@ impl<const W: usize> Coalition<W> {
         }
         let mut c = Self::EMPTY;
         for (i, word) in c.words.iter_mut().enumerate() {
-            let lo = i * 64;
-            if n >= lo + 64 {
+            // i < W, so lo + 64 <= CAPACITY, a constant that fits.
+            let lo = i.saturating_mul(64);
+            if n >= lo.saturating_add(64) {
                 *word = u64::MAX;
             } else if n > lo {
-                *word = (1u64 << (n - lo)) - 1;
+                // 1 <= n - lo <= 63: keep the low n - lo bits.
+                *word = u64::MAX >> (64usize.saturating_sub(n.saturating_sub(lo)) % 64);
             }
         }
         Ok(c)
@@ -71,7 +73,7 @@ impl<const W: usize> Coalition<W> {
     /// Adds member `i`.
     pub fn insert(&mut self, i: usize) -> Result<(), Error> {
         let word = self.words.get_mut(i / 64).ok_or(Error::BallotMismatch {
-            members: i + 1,
+            members: i.saturating_add(1),
             capacity: Self::CAPACITY,
         })?;
         *word |= 1 << (i % 64);
@@ -119,11 +121,11 @@ impl<const W: usize> Coalition<W> {
     /// Whether any member at or beyond `n` is in the set.
     pub fn has_member_at_or_beyond(&self, n: usize) -> bool {
         self.words.iter().enumerate().any(|(i, &w)| {
-            let lo = i * 64;
+            let lo = i.saturating_mul(64);
             if n <= lo {
                 w != 0
-            } else if n < lo + 64 {
-                (w >> (n - lo)) != 0
+            } else if n < lo.saturating_add(64) {
+                (w >> (n.saturating_sub(lo) % 64)) != 0
             } else {
                 false
             }
@@ -134,8 +136,8 @@ impl<const W: usize> Coalition<W> {
     pub fn complement(&self, n: usize) -> Result<Self, Error> {
         let all = Self::first(n)?;
         let mut c = Self::EMPTY;
-        for i in 0..W {
-            c.words[i] = all.words[i] & !self.words[i];
+        for ((out, a), s) in c.words.iter_mut().zip(&all.words).zip(&self.words) {
+            *out = a & !s;
         }
         Ok(c)
     }
@@ -154,10 +156,12 @@ impl<const W: usize> Iterator for Members<'_, W> {
         loop {
             if self.current != 0 {
                 let bit = self.current.trailing_zeros() as usize;
-                self.current &= self.current - 1;
-                return Some(self.index * 64 + bit);
+                // Clear the lowest set bit (current != 0).
+                self.current &= self.current.wrapping_sub(1);
+                // index < W, so index * 64 + bit < CAPACITY.
+                return Some(self.index.wrapping_mul(64).wrapping_add(bit));
             }
-            self.index += 1;
+            self.index = self.index.saturating_add(1);
             self.current = *self.words.get(self.index)?;
         }
     }

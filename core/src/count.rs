@@ -65,7 +65,7 @@ pub trait Counter: Copy + Clone + Eq + Ord + fmt::Debug + fmt::Display {
         while left > 0 {
             let step = left.min(32);
             v = v.mul_u64(1u64 << step)?;
-            left -= step;
+            left = left.saturating_sub(step);
         }
         Ok(v)
     }
@@ -84,19 +84,20 @@ pub fn ratio<C: Counter>(a: C, b: C) -> f64 {
     }
     let (ma, ea) = a.to_f64_parts();
     let (mb, eb) = b.to_f64_parts();
-    libm::ldexp(ma / mb, ea - eb)
+    // Mantissas are in [0.5, 1); exponents of counts are far from i32's ends.
+    libm::ldexp(ma / mb, ea.saturating_sub(eb))
 }
 
 fn parts_u128(v: u128) -> (f64, i32) {
     if v == 0 {
         return (0.0, 0);
     }
-    let bits = 128 - v.leading_zeros() as i32;
+    let bits = 128i32.saturating_sub(v.leading_zeros() as i32);
     // Keep the top 64 bits; the rest only moves the value by < 2^-63 relative.
-    let shift = (bits - 64).max(0);
-    let top = (v >> shift) as u64;
+    let shift = bits.saturating_sub(64).max(0);
+    let top = v.checked_shr(shift as u32).unwrap_or(0) as u64;
     let (m, e) = libm::frexp(top as f64);
-    (m, e + shift)
+    (m, e.saturating_add(shift))
 }
 
 macro_rules! native_counter {
@@ -125,7 +126,11 @@ macro_rules! native_counter {
             }
             fn div_rem_u64(self, d: u64) -> (Self, u64) {
                 let d = d as $t;
-                (self / d, (self % d) as u64)
+                // A zero divisor breaks the trait's contract; answer (0, 0) rather than panic.
+                (
+                    self.checked_div(d).unwrap_or(0),
+                    self.checked_rem(d).unwrap_or(0) as u64,
+                )
             }
         }
     };
@@ -157,20 +162,25 @@ impl<const L: usize> Wide<L> {
     }
 
     fn used(&self) -> usize {
-        let mut n = L;
-        while n > 0 && self.limbs[n - 1] == 0 {
-            n -= 1;
-        }
-        n
+        self.limbs
+            .iter()
+            .rposition(|&l| l != 0)
+            .map_or(0, |i| i.saturating_add(1))
     }
 
     /// Divides in place by a small divisor, returning the remainder.
     fn div_rem_small(&mut self, d: u64) -> u64 {
+        let Some(d) = core::num::NonZeroU128::new(u128::from(d)) else {
+            // A zero divisor breaks the trait's contract; answer (0, 0) rather than panic.
+            self.limbs = [0; L];
+            return 0;
+        };
         let mut rem: u128 = 0;
         for limb in self.limbs.iter_mut().rev() {
+            // rem < d <= 2^64, so the shift keeps every bit.
             let cur = (rem << 64) | u128::from(*limb);
-            *limb = (cur / u128::from(d)) as u64;
-            rem = cur % u128::from(d);
+            *limb = (cur / d) as u64;
+            rem = cur % d;
         }
         rem as u64
     }
@@ -178,8 +188,8 @@ impl<const L: usize> Wide<L> {
 
 impl<const L: usize> Ord for Wide<L> {
     fn cmp(&self, other: &Self) -> Ordering {
-        for i in (0..L).rev() {
-            match self.limbs[i].cmp(&other.limbs[i]) {
+        for (a, b) in self.limbs.iter().zip(&other.limbs).rev() {
+            match a.cmp(b) {
                 Ordering::Equal => continue,
                 o => return o,
             }
@@ -205,15 +215,17 @@ impl<const L: usize> Counter for Wide<L> {
 
     fn from_u64(v: u64) -> Self {
         let mut limbs = [0; L];
-        limbs[0] = v;
+        if let Some(low) = limbs.first_mut() {
+            *low = v;
+        }
         Wide { limbs }
     }
 
     fn checked_add(self, rhs: Self) -> Option<Self> {
         let mut out = [0u64; L];
         let mut carry = false;
-        for (i, o) in out.iter_mut().enumerate() {
-            let (s1, c1) = self.limbs[i].overflowing_add(rhs.limbs[i]);
+        for ((o, a), b) in out.iter_mut().zip(&self.limbs).zip(&rhs.limbs) {
+            let (s1, c1) = a.overflowing_add(*b);
             let (s2, c2) = s1.overflowing_add(u64::from(carry));
             *o = s2;
             carry = c1 || c2;
@@ -224,8 +236,8 @@ impl<const L: usize> Counter for Wide<L> {
     fn checked_sub(self, rhs: Self) -> Option<Self> {
         let mut out = [0u64; L];
         let mut borrow = false;
-        for (i, o) in out.iter_mut().enumerate() {
-            let (d1, b1) = self.limbs[i].overflowing_sub(rhs.limbs[i]);
+        for ((o, a), b) in out.iter_mut().zip(&self.limbs).zip(&rhs.limbs) {
+            let (d1, b1) = a.overflowing_sub(*b);
             let (d2, b2) = d1.overflowing_sub(u64::from(borrow));
             *o = d2;
             borrow = b1 || b2;
@@ -233,6 +245,11 @@ impl<const L: usize> Counter for Wide<L> {
         (!borrow).then_some(Wide { limbs: out })
     }
 
+    // Schoolbook multiplication, the hot path of wide counts: i < na <= L,
+    // j < nb <= L, and every write is behind `k < L`; a u64 * u64 product
+    // plus two u64 carries is below 2^128. Indexing and plain arithmetic are
+    // therefore in range and cannot overflow (see DEVELOPERS.md, "Panics").
+    #[allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
     fn checked_mul(self, rhs: Self) -> Option<Self> {
         let (na, nb) = (self.used(), rhs.used());
         if na == 0 || nb == 0 {
@@ -271,14 +288,12 @@ impl<const L: usize> Counter for Wide<L> {
 
     fn from_u128(v: u128) -> Option<Self> {
         let mut limbs = [0u64; L];
-        match L {
-            0 => return (v == 0).then_some(Wide { limbs }),
-            1 => {
-                limbs[0] = u64::try_from(v).ok()?;
-            }
-            _ => {
-                limbs[0] = v as u64;
-                limbs[1] = (v >> 64) as u64;
+        match &mut limbs[..] {
+            [] => return (v == 0).then_some(Wide { limbs }),
+            [low] => *low = u64::try_from(v).ok()?,
+            [low, high, ..] => {
+                *low = v as u64;
+                *high = (v >> 64) as u64;
             }
         }
         Some(Wide { limbs })
@@ -292,13 +307,17 @@ impl<const L: usize> Counter for Wide<L> {
 
     fn to_f64_parts(self) -> (f64, i32) {
         let n = self.used();
-        match n {
-            0 => (0.0, 0),
-            1 => parts_u128(u128::from(self.limbs[0])),
-            _ => {
-                let top = (u128::from(self.limbs[n - 1]) << 64) | u128::from(self.limbs[n - 2]);
+        match self.limbs.get(..n).unwrap_or(&[]) {
+            [] => (0.0, 0),
+            [low] => parts_u128(u128::from(*low)),
+            [.., next, top] => {
+                let top = (u128::from(*top) << 64) | u128::from(*next);
                 let (m, e) = parts_u128(top);
-                (m, e + 64 * (n as i32 - 2))
+                // n <= L limbs: the exponent is at most 64 L, far inside i32.
+                (
+                    m,
+                    e.saturating_add(64i32.saturating_mul((n as i32).saturating_sub(2))),
+                )
             }
         }
     }
@@ -342,13 +361,13 @@ struct DigitBuf {
 
 impl DigitBuf {
     fn as_str(&self) -> &str {
-        core::str::from_utf8(&self.bytes[..self.len]).unwrap_or("")
+        core::str::from_utf8(self.bytes.get(..self.len).unwrap_or(&[])).unwrap_or("")
     }
 }
 
 impl fmt::Write for DigitBuf {
     fn write_str(&mut self, s: &str) -> fmt::Result {
-        let end = self.len + s.len();
+        let end = self.len.checked_add(s.len()).ok_or(fmt::Error)?;
         let dest = self.bytes.get_mut(self.len..end).ok_or(fmt::Error)?;
         dest.copy_from_slice(s.as_bytes());
         self.len = end;
@@ -367,12 +386,13 @@ pub fn binomial<C: Counter>(n: u64, k: u64) -> Result<C, Error> {
     if k > n {
         return Ok(C::ZERO);
     }
-    let k = k.min(n - k);
+    let k = k.min(n.saturating_sub(k));
     // C(n, i+1) = C(n, i) * (n - i) / (i + 1); the division is exact.
     let mut acc = C::ONE;
     for i in 0..k {
-        acc = acc.mul_u64(n - i)?;
-        let (q, rem) = acc.div_rem_u64(i + 1);
+        // i < k <= n / 2: both factors are positive.
+        acc = acc.mul_u64(n.saturating_sub(i))?;
+        let (q, rem) = acc.div_rem_u64(i.saturating_add(1));
         if rem != 0 {
             return Err(Error::CountOverflow);
         }

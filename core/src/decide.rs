@@ -118,7 +118,9 @@ pub fn decide_ballot<W: AsRef<[u64]>, const B: usize>(
     let mut tallies = heapless::Vec::new();
     for (i, atom) in rule.atoms().iter().enumerate() {
         let a = usize::from(atom.attribute);
-        let (y, n, ab) = (yes[a], no[a], abstain[a]);
+        // a < attributes <= MAX_ATTRIBUTES (Rule::new), so every get finds it.
+        let at = |sums: &[u64; MAX_ATTRIBUTES]| sums.get(a).copied().unwrap_or(0);
+        let (y, n, ab) = (at(&yes), at(&no), at(&abstain));
         let met = match rule.linear(i) {
             Some(l) => l.holds(y, n, ab),
             None => y >= atom.quota,
@@ -147,7 +149,7 @@ pub fn critical<W: AsRef<[u64]>, const B: usize>(
 ) -> Result<Coalition<B>, Error> {
     let mut sums = [0u64; MAX_ATTRIBUTES];
     rule.yes_sums(yes, &mut sums)?;
-    let passed = rule.passes_with_sums(&sums[..rule.attributes()]);
+    let passed = rule.passes_with_sums(sums.get(..rule.attributes()).unwrap_or(&[]));
     let mut out = Coalition::<B>::EMPTY;
     for i in 0..rule.members() {
         let voting_yes = yes.contains(i);

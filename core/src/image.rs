@@ -250,7 +250,7 @@ struct Header {
 
 fn u16_at(bytes: &[u8], at: usize) -> u16 {
     let mut b = [0u8; 2];
-    if let Some(src) = bytes.get(at..at + 2) {
+    if let Some(src) = bytes.get(at..at.saturating_add(2)) {
         b.copy_from_slice(src);
     }
     u16::from_le_bytes(b)
@@ -258,7 +258,7 @@ fn u16_at(bytes: &[u8], at: usize) -> u16 {
 
 fn u32_at(bytes: &[u8], at: usize) -> u32 {
     let mut b = [0u8; 4];
-    if let Some(src) = bytes.get(at..at + 4) {
+    if let Some(src) = bytes.get(at..at.saturating_add(4)) {
         b.copy_from_slice(src);
     }
     u32::from_le_bytes(b)
@@ -266,7 +266,7 @@ fn u32_at(bytes: &[u8], at: usize) -> u32 {
 
 fn i128_at(bytes: &[u8], at: usize) -> i128 {
     let mut b = [0u8; 16];
-    if let Some(src) = bytes.get(at..at + 16) {
+    if let Some(src) = bytes.get(at..at.saturating_add(16)) {
         b.copy_from_slice(src);
     }
     i128::from_le_bytes(b)
@@ -275,8 +275,8 @@ fn i128_at(bytes: &[u8], at: usize) -> i128 {
 /// An unsigned little-endian integer of `width <= 8` bytes at `at` (0 beyond the data).
 fn uint_at(bytes: &[u8], at: usize, width: usize) -> u64 {
     let mut b = [0u8; 8];
-    if let Some(src) = bytes.get(at..at + width) {
-        b[..width].copy_from_slice(src);
+    if let (Some(src), Some(dst)) = (bytes.get(at..at.saturating_add(width)), b.get_mut(..width)) {
+        dst.copy_from_slice(src);
     }
     u64::from_le_bytes(b)
 }
@@ -284,7 +284,7 @@ fn uint_at(bytes: &[u8], at: usize, width: usize) -> u64 {
 /// Magic, header length and version: enough to trust the header's layout.
 fn read_header(bytes: &[u8]) -> Result<Header, ImageError> {
     let prefix = bytes.len().min(MAGIC.len());
-    if bytes[..prefix] != MAGIC[..prefix] {
+    if bytes.get(..prefix) != MAGIC.get(..prefix) {
         return Err(ImageError::BadMagic);
     }
     if bytes.len() < HEADER_LEN {
@@ -324,15 +324,19 @@ fn check_length_and_checksum(bytes: &[u8], h: &Header) -> Result<(), ImageError>
             len: bytes.len(),
         });
     }
-    if h.declared_len < HEADER_LEN + CHECKSUM_LEN {
+    let Some(body) = h
+        .declared_len
+        .checked_sub(CHECKSUM_LEN)
+        .filter(|&b| b >= HEADER_LEN)
+    else {
         return Err(ImageError::LayoutMismatch {
             declared: h.declared_len,
             expected: HEADER_LEN + CHECKSUM_LEN,
         });
-    }
-    let body = h.declared_len - CHECKSUM_LEN;
+    };
     let stored = u32_at(bytes, body);
-    let computed = crc32(&bytes[..body]);
+    // body < declared_len == bytes.len(), checked above.
+    let computed = crc32(bytes.get(..body).unwrap_or(&[]));
     if stored != computed {
         return Err(ImageError::ChecksumMismatch { stored, computed });
     }
@@ -384,18 +388,19 @@ struct Checked<'a> {
 
 /// The condition stored at `at`, or its unknown kind.
 fn condition_at(bytes: &[u8], at: usize) -> Result<Condition, u8> {
-    let attribute = u16_at(bytes, at + 1);
+    let field = |offset: usize| at.saturating_add(offset);
+    let attribute = u16_at(bytes, field(1));
     match bytes.get(at).copied().unwrap_or(u8::MAX) {
         KIND_THRESHOLD => Ok(Condition::Yes(Atom {
             attribute,
-            quota: uint_at(bytes, at + 3, 8),
+            quota: uint_at(bytes, field(3), 8),
         })),
         KIND_LINEAR => Ok(Condition::Linear(Linear {
             attribute,
-            yes: u32_at(bytes, at + 3) as i32,
-            no: u32_at(bytes, at + 7) as i32,
-            abstain: u32_at(bytes, at + 11) as i32,
-            bound: i128_at(bytes, at + 15),
+            yes: u32_at(bytes, field(3)) as i32,
+            no: u32_at(bytes, field(7)) as i32,
+            abstain: u32_at(bytes, field(11)) as i32,
+            bound: i128_at(bytes, field(15)),
         })),
         kind => Err(kind),
     }
@@ -410,8 +415,10 @@ fn condition_len(c: &Condition) -> usize {
 
 impl Checked<'_> {
     fn weight(&self, attribute: usize, member: usize) -> u64 {
-        let (at, width) = self.rows[attribute];
-        uint_at(self.bytes, at + member * width, width)
+        // Rows were laid out inside the checked length, so offsets stay far
+        // below usize::MAX; a wrong index reads as 0 (rows beyond `attributes` are (0, 0)).
+        let (at, width) = self.rows.get(attribute).copied().unwrap_or((0, 0));
+        uint_at(self.bytes, at.saturating_add(member.saturating_mul(width)), width)
     }
 }
 
@@ -423,42 +430,49 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
     let (n, attributes) = (h.members, h.attributes);
 
     // Widths, then the section layout they imply.
-    let widths_end = HEADER_LEN + attributes;
-    if widths_end > h.declared_len - CHECKSUM_LEN {
+    // Lengths below are sums of at most a few million (limits checked above)
+    // and the declared length (< 2^32); saturation cannot occur.
+    let widths_end = HEADER_LEN.saturating_add(attributes);
+    let body_end = h.declared_len.saturating_sub(CHECKSUM_LEN);
+    if widths_end > body_end {
         return Err(ImageError::LayoutMismatch {
             declared: h.declared_len,
-            expected: widths_end + CHECKSUM_LEN,
+            expected: widths_end.saturating_add(CHECKSUM_LEN),
         });
     }
     let mut rows = [(0usize, 0usize); MAX_ATTRIBUTES];
     let mut at = widths_end;
     for (a, row) in rows.iter_mut().enumerate().take(attributes) {
-        let width = bytes[HEADER_LEN + a];
+        let width = bytes.get(HEADER_LEN.saturating_add(a)).copied().unwrap_or(0);
         if !matches!(width, 1 | 2 | 4 | 8) {
             return Err(ImageError::BadWidth { attribute: a, width });
         }
         *row = (at, usize::from(width));
-        at += n * usize::from(width);
+        at = at.saturating_add(n.saturating_mul(usize::from(width)));
     }
     // Condition records differ in length by kind, so the layout is known
     // only after reading each kind (as far as the declared length reaches).
-    let body_end = h.declared_len - CHECKSUM_LEN;
     let mut conditions = heapless::Vec::new();
     for k in 0..h.atoms {
         if at >= body_end {
-            let rest = (h.atoms - k) * THRESHOLD_LEN + h.nodes * NODE_LEN + CHECKSUM_LEN;
+            let rest = (h.atoms.saturating_sub(k))
+                .saturating_mul(THRESHOLD_LEN)
+                .saturating_add(h.nodes.saturating_mul(NODE_LEN))
+                .saturating_add(CHECKSUM_LEN);
             return Err(ImageError::LayoutMismatch {
                 declared: h.declared_len,
-                expected: at + rest,
+                expected: at.saturating_add(rest),
             });
         }
         let c = condition_at(bytes, at).map_err(|kind| ImageError::BadConditionKind { atom: k, kind })?;
-        at += condition_len(&c);
+        at = at.saturating_add(condition_len(&c));
         // Capacity was checked against MAX_ATOMS above.
         let _ = conditions.push(c);
     }
     let nodes_at = at;
-    let expected = nodes_at + h.nodes * NODE_LEN + CHECKSUM_LEN;
+    let expected = nodes_at
+        .saturating_add(h.nodes.saturating_mul(NODE_LEN))
+        .saturating_add(CHECKSUM_LEN);
     if expected != h.declared_len {
         return Err(ImageError::LayoutMismatch {
             declared: h.declared_len,
@@ -480,9 +494,10 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
             .ok_or(Error::WeightSumOverflow { attribute: a })?;
     }
     for k in 0..h.nodes {
-        let at = nodes_at + k * NODE_LEN;
-        let arg = u16_at(bytes, at + 1);
-        let node = match bytes[at] {
+        let at = nodes_at.saturating_add(k.saturating_mul(NODE_LEN));
+        let arg = u16_at(bytes, at.saturating_add(1));
+        // The layout check put every node inside the body.
+        let node = match bytes.get(at).copied().unwrap_or(u8::MAX) {
             KIND_ATOM => Node::Atom(arg),
             KIND_ALL => Node::All(arg),
             KIND_ANY => Node::Any(arg),
@@ -495,7 +510,8 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
     // weights or on the member count, so a one-member rule with a zero row
     // per attribute runs them without a buffer of the real size.
     let zeros = [0u64; MAX_ATTRIBUTES];
-    Rule::with_conditions(1, &zeros[..attributes], &checked.conditions, &checked.formula)?;
+    let stand_in = zeros.get(..attributes).unwrap_or(&[]);
+    Rule::with_conditions(1, stand_in, &checked.conditions, &checked.formula)?;
     Ok(checked)
 }
 
@@ -503,7 +519,8 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
 /// (members * attributes), after every check.
 pub fn weights_needed(bytes: &[u8]) -> Result<usize, ImageError> {
     let c = check(bytes)?;
-    Ok(c.members * c.attributes)
+    // At most 65,535 * 64 after check().
+    Ok(c.members.saturating_mul(c.attributes))
 }
 
 /// Checks `bytes` completely, writes its weight table into `weights` and
@@ -526,7 +543,7 @@ pub fn load_with<'w, W: AsRef<[u64]>>(
     wrap: impl FnOnce(&'w [u64]) -> W,
 ) -> Result<Rule<W>, ImageError> {
     let c = check(bytes)?;
-    let needed = c.members * c.attributes;
+    let needed = c.members.saturating_mul(c.attributes);
     let given = weights.len();
     let table = weights
         .get_mut(..needed)
@@ -550,12 +567,13 @@ pub fn load_with<'w, W: AsRef<[u64]>>(
 /// the header can be read (not an image, too short, unknown version).
 pub fn inspect(bytes: &[u8]) -> Result<ImageInfo, ImageError> {
     let h = read_header(bytes)?;
-    let holds_checksum = h.declared_len >= HEADER_LEN + CHECKSUM_LEN && bytes.len() >= h.declared_len;
-    let (stored, computed) = if holds_checksum {
-        let body = h.declared_len - CHECKSUM_LEN;
-        (Some(u32_at(bytes, body)), Some(crc32(&bytes[..body])))
-    } else {
-        (None, None)
+    let body = h
+        .declared_len
+        .checked_sub(CHECKSUM_LEN)
+        .filter(|&b| b >= HEADER_LEN && bytes.len() >= h.declared_len);
+    let (stored, computed) = match body.and_then(|b| bytes.get(..b)) {
+        Some(covered) => (Some(u32_at(bytes, covered.len())), Some(crc32(covered))),
+        None => (None, None),
     };
     Ok(ImageInfo {
         version: h.version,
@@ -589,14 +607,19 @@ fn width_of<W: AsRef<[u64]>>(rule: &Rule<W>, attribute: usize) -> usize {
 
 /// Length in bytes of `rule`'s image.
 pub fn encoded_len<W: AsRef<[u64]>>(rule: &Rule<W>) -> usize {
+    // A valid rule's image is at most MAX_IMAGE_LEN (< 2^32) bytes: no saturation.
     let rows: usize = (0..rule.attributes())
-        .map(|a| 1 + rule.members() * width_of(rule, a))
-        .sum();
+        .map(|a| rule.members().saturating_mul(width_of(rule, a)).saturating_add(1))
+        .fold(0, usize::saturating_add);
     let conditions: usize = (0..rule.atoms().len())
         .filter_map(|i| rule.condition(i))
         .map(|c| condition_len(&c))
-        .sum();
-    HEADER_LEN + rows + conditions + rule.formula().len() * NODE_LEN + CHECKSUM_LEN
+        .fold(0, usize::saturating_add);
+    HEADER_LEN
+        .saturating_add(rows)
+        .saturating_add(conditions)
+        .saturating_add(rule.formula().len().saturating_mul(NODE_LEN))
+        .saturating_add(CHECKSUM_LEN)
 }
 
 /// Writes `rule`'s image into the front of `out` and returns its length.
@@ -625,7 +648,7 @@ pub fn encode_into<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut [u8]) -> Result<us
     for a in 0..rule.attributes() {
         let width = width_of(rule, a);
         for &weight in rule.attribute_weights(a) {
-            w.put(&weight.to_le_bytes()[..width]);
+            w.put(weight.to_le_bytes().get(..width).unwrap_or(&[]));
         }
     }
     for condition in (0..rule.atoms().len()).filter_map(|i| rule.condition(i)) {
@@ -654,7 +677,7 @@ pub fn encode_into<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut [u8]) -> Result<us
         w.put(&[kind]);
         w.put(&arg.to_le_bytes());
     }
-    let crc = crc32(&w.out[..w.at]);
+    let crc = crc32(w.out.get(..w.at).unwrap_or(&[]));
     w.put(&crc.to_le_bytes());
     debug_assert_eq!(w.at, len);
     Ok(len)
@@ -677,10 +700,11 @@ struct Writer<'a> {
 
 impl Writer<'_> {
     fn put(&mut self, bytes: &[u8]) {
-        if let Some(dst) = self.out.get_mut(self.at..self.at + bytes.len()) {
+        let end = self.at.saturating_add(bytes.len());
+        if let Some(dst) = self.out.get_mut(self.at..end) {
             dst.copy_from_slice(bytes);
         }
-        self.at += bytes.len();
+        self.at = end;
     }
 }
 

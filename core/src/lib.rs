@@ -64,6 +64,21 @@
 
 #![cfg_attr(not(any(test, feature = "std")), no_std)]
 #![deny(unsafe_code)]
+// Library code cannot panic: no unwrap, expect, panic or unreachable, no
+// indexing that can fail and no unchecked arithmetic. The hot loops of the
+// engines opt out of the last two per module, each with the argument why
+// (collected in DEVELOPERS.md, "Panics"). Tests may do as they like.
+#![cfg_attr(
+    not(test),
+    deny(
+        clippy::unwrap_used,
+        clippy::expect_used,
+        clippy::panic,
+        clippy::unreachable,
+        clippy::indexing_slicing,
+        clippy::arithmetic_side_effects
+    )
+)]
 #![warn(missing_docs)]
 // Indexed loops read more clearly than zipped iterators in the DP tables.
 #![allow(clippy::needless_range_loop)]

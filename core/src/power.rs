@@ -96,14 +96,15 @@ impl<C: Counter> RuleCounts<C> {
     /// equal chance.
     pub fn passage_probability(&self) -> f64 {
         let (mw, ew) = self.winning.to_f64_parts();
-        libm::ldexp(mw, ew - self.members as i32)
+        // Exponents of counts below 2^(n + 64) and n <= 65,535: far from i32's range.
+        libm::ldexp(mw, ew.saturating_sub(self.members as i32))
     }
 }
 
 /// `count * 2^-shift` as an `f64`, without forming 2^shift.
 pub(crate) fn scaled<C: Counter>(count: C, shift: usize) -> f64 {
     let (m, e) = count.to_f64_parts();
-    libm::ldexp(m, e - shift as i32)
+    libm::ldexp(m, e.saturating_sub(shift as i32))
 }
 
 /// Indices of all members, from an engine's counts.

@@ -57,7 +57,8 @@ fn check_share(numerator: u64, denominator: u64) -> Result<(), Error> {
 /// `ceil(total * numerator / denominator)`: the least sum that is at least the share.
 pub fn at_least_share(numerator: u64, denominator: u64, total: u64) -> Result<u64, Error> {
     check_share(numerator, denominator)?;
-    let product = u128::from(total) * u128::from(numerator);
+    // Both factors are below 2^64, so the product fits in u128.
+    let product = u128::from(total).saturating_mul(u128::from(numerator));
     let q = product.div_ceil(u128::from(denominator));
     // q <= total because numerator <= denominator.
     u64::try_from(q).map_err(|_| Error::CountOverflow)
@@ -66,8 +67,12 @@ pub fn at_least_share(numerator: u64, denominator: u64, total: u64) -> Result<u6
 /// `floor(total * numerator / denominator) + 1`: the least sum strictly above the share.
 pub fn more_than_share(numerator: u64, denominator: u64, total: u64) -> Result<u64, Error> {
     check_share(numerator, denominator)?;
-    let product = u128::from(total) * u128::from(numerator);
-    let q = product / u128::from(denominator) + 1;
+    let product = u128::from(total).saturating_mul(u128::from(numerator));
+    // check_share refused a zero denominator.
+    let q = product
+        .checked_div(u128::from(denominator))
+        .unwrap_or(0)
+        .saturating_add(1);
     u64::try_from(q).map_err(|_| Error::CountOverflow)
 }
 
@@ -113,7 +118,9 @@ pub fn against(cmp: Comparison, bound: Bound, total: u64) -> Result<u64, Error> 
         ) => {
             // no <= share*T  <=>  no <= floor(share*T)
             check_share(numerator, denominator)?;
-            Some(((u128::from(total) * u128::from(numerator)) / u128::from(denominator)) as u64)
+            let product = u128::from(total).saturating_mul(u128::from(numerator));
+            // share <= 1, so the floor is at most total and fits in u64.
+            Some(product.checked_div(u128::from(denominator)).unwrap_or(0) as u64)
         }
         (
             Comparison::LessThan,

@@ -61,9 +61,12 @@ impl Linear {
 
     /// Left-hand side for the given group sums.
     pub fn lhs(&self, yes: u64, no: u64, abstain: u64) -> i128 {
-        i128::from(self.yes) * i128::from(yes)
-            + i128::from(self.no) * i128::from(no)
-            + i128::from(self.abstain) * i128::from(abstain)
+        // |coefficient| <= 2^31 and sums < 2^64: each product is below 2^95
+        // and the sum below 2^97, so saturation never happens.
+        let term = |c: i32, s: u64| i128::from(c).saturating_mul(i128::from(s));
+        term(self.yes, yes)
+            .saturating_add(term(self.no, no))
+            .saturating_add(term(self.abstain, abstain))
     }
 
     /// Whether the condition holds for the given group sums.
@@ -76,9 +79,14 @@ impl Linear {
     /// the power indices measure. `total + 1` when no yes-sum meets it.
     pub fn binary_quota(&self, total: u64) -> u64 {
         // yes*Y + no*(T - Y) >= bound  <=>  (yes - no) Y >= bound - no*T
-        let d = i128::from(self.yes) - i128::from(self.no);
-        let need = self.bound - i128::from(self.no) * i128::from(total);
-        let never = u128::from(total) + 1;
+        let d = i128::from(self.yes).saturating_sub(i128::from(self.no));
+        // A bound near +-2^127 saturates here; the quota is clamped to
+        // 0..=total + 1 below either way, which saturation cannot change
+        // (|need| >= 2^126 while d < 2^33 and total < 2^64).
+        let need = self
+            .bound
+            .saturating_sub(i128::from(self.no).saturating_mul(i128::from(total)));
+        let never = u128::from(total).saturating_add(1);
         let q: i128 = if d <= 0 {
             if need <= 0 {
                 0
@@ -87,7 +95,9 @@ impl Linear {
             }
         } else {
             // ceil(need / d) for any sign of need
-            let q = need.div_euclid(d) + i128::from(need.rem_euclid(d) != 0);
+            let q = need
+                .div_euclid(d)
+                .saturating_add(i128::from(need.rem_euclid(d) != 0));
             q.clamp(0, never as i128)
         };
         u64::try_from(q).unwrap_or(u64::MAX)
@@ -146,13 +156,13 @@ impl<W: AsRef<[u64]>> Rule<W> {
             });
         }
         let table = weights.as_ref();
-        if table.len() % members != 0 {
+        if table.len().checked_rem(members) != Some(0) {
             return Err(Error::WeightTableShape {
                 len: table.len(),
                 members,
             });
         }
-        let attributes = table.len() / members;
+        let attributes = table.len().checked_div(members).unwrap_or(0);
         if attributes > MAX_ATTRIBUTES {
             return Err(Error::TooManyAttributes {
                 attributes,
@@ -227,11 +237,19 @@ impl<W: AsRef<[u64]>> Rule<W> {
         let mut rule = Self::new(members, weights, &atoms, formula)?;
         for (i, c) in conditions.iter().enumerate() {
             match *c {
-                Condition::Yes(a) => rule.atoms[i].quota = a.quota,
+                // `Self::new` took one atom and one linear slot per condition.
+                Condition::Yes(a) => {
+                    if let Some(atom) = rule.atoms.get_mut(i) {
+                        atom.quota = a.quota;
+                    }
+                }
                 Condition::Linear(l) => {
                     l.check_monotone()?;
-                    rule.atoms[i].quota = l.binary_quota(rule.total(usize::from(l.attribute)));
-                    rule.linear[i] = Some(l);
+                    let quota = l.binary_quota(rule.total(usize::from(l.attribute)));
+                    if let (Some(atom), Some(slot)) = (rule.atoms.get_mut(i), rule.linear.get_mut(i)) {
+                        atom.quota = quota;
+                        *slot = Some(l);
+                    }
                 }
             }
         }
@@ -279,7 +297,7 @@ impl<W: AsRef<[u64]>> Rule<W> {
         }
         self.weights
             .as_ref()
-            .get(attribute * self.members + member)
+            .get(attribute.saturating_mul(self.members).saturating_add(member))
             .copied()
             .unwrap_or(0)
     }
@@ -365,7 +383,7 @@ impl<W: AsRef<[u64]>> Rule<W> {
     pub fn passes<const B: usize>(&self, yes: &Coalition<B>) -> Result<bool, Error> {
         let mut sums = [0u64; MAX_ATTRIBUTES];
         self.yes_sums(yes, &mut sums)?;
-        Ok(self.passes_with_sums(&sums[..self.attributes]))
+        Ok(self.passes_with_sums(sums.get(..self.attributes).unwrap_or(&[])))
     }
 
     /// Writes the yes-sum of every used attribute into `sums` (unused: 0).
@@ -418,7 +436,7 @@ fn eval_postfix(formula: &[Node], mut atom_met: impl FnMut(usize) -> bool) -> bo
             Node::Atom(i) => stack = (stack << 1) | u128::from(atom_met(usize::from(i))),
             Node::All(k) | Node::Any(k) => {
                 let k = u32::from(k);
-                let mask = if k >= 128 { u128::MAX } else { (1u128 << k) - 1 };
+                let mask = u128::MAX.checked_shr(128u32.saturating_sub(k)).unwrap_or(0);
                 let top = stack & mask;
                 let value = match node {
                     Node::All(_) => top == mask,
@@ -450,8 +468,12 @@ fn check_formula(formula: &[Node], atoms: usize) -> Result<(), Error> {
                         atom: usize::from(i),
                     });
                 }
-                depths[height] = 0;
-                height += 1;
+                // At most one pending value per node: height < formula.len() <= MAX_NODES.
+                let slot = depths
+                    .get_mut(height)
+                    .ok_or(Error::MalformedFormula { node: n })?;
+                *slot = 0;
+                height = height.saturating_add(1);
             }
             Node::All(k) | Node::Any(k) => {
                 let k = usize::from(k);
@@ -461,17 +483,22 @@ fn check_formula(formula: &[Node], atoms: usize) -> Result<(), Error> {
                 if k > height {
                     return Err(Error::MalformedFormula { node: n });
                 }
-                let deepest = depths[height - k..height].iter().copied().max().unwrap_or(0);
-                let depth = usize::from(deepest) + 1;
+                // k <= height was checked just above.
+                let below = height.saturating_sub(k);
+                let operands = depths.get(below..height).unwrap_or(&[]);
+                let deepest = operands.iter().copied().max().unwrap_or(0);
+                let depth = usize::from(deepest).saturating_add(1);
                 if depth > MAX_DEPTH {
                     return Err(Error::TooDeep {
                         depth,
                         limit: MAX_DEPTH,
                     });
                 }
-                height -= k;
-                depths[height] = depth as u8;
-                height += 1;
+                // depth <= MAX_DEPTH = 32 fits a u8.
+                if let Some(slot) = depths.get_mut(below) {
+                    *slot = depth as u8;
+                }
+                height = below.saturating_add(1);
             }
         }
     }

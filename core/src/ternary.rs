@@ -22,6 +22,14 @@
 //! multinomial coefficients, O(T (atoms + nodes)) each. Counts are exact
 //! in the caller's [`Counter`]; the attendance probability is an `f64`.
 
+// Hot loops index their tables and add bounded integers directly (checked
+// arithmetic would cost the engines' speed). Why nothing is out of range or
+// overflows, listed in DEVELOPERS.md ("Panics"):
+// at most MAX_PROFILES (2^32) profiles of at most MAX_TYPES types, digit (y, a) of type
+// t within 0..=c_t; group sums are bounded by the attribute totals checked at
+// construction; counts use the checked `Counter`.
+#![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
+
 use alloc::vec;
 use alloc::vec::Vec;
 

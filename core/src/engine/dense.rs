@@ -19,6 +19,15 @@
 //! `None`). Scratch: (n + 1) P counts for the table, 2 (cap + 1) for the
 //! division rows, n for pivots; 2n + 1 indices.
 
+// Hot loops index their tables and add bounded integers directly (checked
+// arithmetic would cost the engines' speed). Why nothing is out of range or
+// overflows, listed in DEVELOPERS.md ("Panics"):
+// the table has per_row * (n + 1) <= MAX_TABLE cells (refused otherwise by `space`),
+// every state index is a mixed-radix number below per_row, sums are capped at each
+// attribute's cap before they index; scratch is below `need`, checked by
+// `try_count_for`; counts use the checked `Counter`.
+#![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
+
 use super::profile::group_types;
 use super::{shapley_from_sizes, sum_counts, Need, Workspace};
 use crate::count::Counter;

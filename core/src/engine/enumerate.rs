@@ -5,6 +5,14 @@
 //! (pivots by size, swings by the number of swings in the coalition,
 //! minimal winning coalitions by size). Limited to n <= [`MAX_MEMBERS`].
 
+// Hot loops index their tables and add bounded integers directly (checked
+// arithmetic would cost the engines' speed). Why nothing is out of range or
+// overflows, listed in DEVELOPERS.md ("Panics"):
+// n <= 30 members (checked by `check`), so 2^n, Gray-code indices and 3 n^2 scratch fit
+// in usize; every table index is below its `need`, which `try_count_for` checked against
+// the caller's scratch.
+#![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
+
 use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
 use crate::count::Counter;
 use crate::limits::MAX_ATTRIBUTES;

@@ -147,6 +147,7 @@ fn diagram_need() -> Result<Need, Error> {
 
 #[cfg(feature = "alloc")]
 fn diagram_cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
+    diagram::check_totals(rule)?;
     Ok(diagram::estimate(rule))
 }
 
@@ -167,7 +168,7 @@ pub fn memory_for<W: AsRef<[u64]>>(
     count_bytes: usize,
 ) -> Result<u64, Error> {
     let n = rule.members() as u64;
-    let results = n * (count_bytes as u64 * 2 + 48);
+    let results = n.saturating_mul((count_bytes as u64).saturating_mul(2).saturating_add(48));
     let tables = match engine {
         Engine::Diagram => diagram_memory(rule, count_bytes)?,
         Engine::Dense if cfg!(feature = "alloc") && scope == Scope::Swings => {
@@ -177,7 +178,7 @@ pub fn memory_for<W: AsRef<[u64]>>(
             let need = need_for(rule, engine, scope)?;
             (need.counts as u64)
                 .saturating_mul(count_bytes as u64)
-                .saturating_add(need.indices as u64 * 4)
+                .saturating_add((need.indices as u64).saturating_mul(4))
         }
     };
     Ok(tables.saturating_add(results))
@@ -234,7 +235,8 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
             given: work.indices.len(),
         });
     }
-    let members = &mut members[..n];
+    // members.len() >= n was checked above.
+    let members = members.get_mut(..n).unwrap_or(&mut []);
     for m in members.iter_mut() {
         *m = MemberCounts::EMPTY;
     }
@@ -284,13 +286,19 @@ fn mark_veto_and_dictators<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, members:
     for (i, m) in members.iter_mut().enumerate() {
         let mut without = totals;
         let mut alone = [0u64; MAX_ATTRIBUTES];
-        for a in 0..attributes {
+        for (a, (out, solo)) in without
+            .iter_mut()
+            .zip(alone.iter_mut())
+            .enumerate()
+            .take(attributes)
+        {
             let w = rule.weight(a, i);
-            without[a] = totals[a].saturating_sub(w);
-            alone[a] = w;
+            *out = out.saturating_sub(w);
+            *solo = w;
         }
-        m.veto = !rule.passes_with_sums(&without[..attributes]);
-        m.dictator = m.veto && rule.passes_with_sums(&alone[..attributes]);
+        // attributes <= MAX_ATTRIBUTES (Rule::new).
+        m.veto = !rule.passes_with_sums(without.get(..attributes).unwrap_or(&[]));
+        m.dictator = m.veto && rule.passes_with_sums(alone.get(..attributes).unwrap_or(&[]));
     }
 }
 
@@ -318,7 +326,10 @@ pub(crate) fn shapley_from_sizes<C: Counter>(n: usize, by_size: &[C]) -> Result<
         }
         let k = k as u64;
         if k < top {
-            let (q, r) = binom.mul_u64(top - k)?.div_rem_u64(k + 1);
+            // k < top: both factors are positive.
+            let (q, r) = binom
+                .mul_u64(top.saturating_sub(k))?
+                .div_rem_u64(k.saturating_add(1));
             debug_assert_eq!(r, 0);
             binom = q;
         }
@@ -337,7 +348,9 @@ fn shapley_numerator<C: Counter>(n: usize, by_size: &[C]) -> Result<C, Error> {
         acc = acc.add(c.mul(term)?)?;
         let k = k as u64;
         if k < top {
-            let (q, r) = term.mul_u64(k + 1)?.div_rem_u64(top - k);
+            let (q, r) = term
+                .mul_u64(k.saturating_add(1))?
+                .div_rem_u64(top.saturating_sub(k));
             if r != 0 {
                 return Err(Error::CountOverflow);
             }
@@ -353,7 +366,7 @@ pub(crate) fn reciprocal_sum<C: Counter>(n: usize, counts: &[C]) -> f64 {
         .iter()
         .enumerate()
         .filter(|(_, c)| !c.is_zero())
-        .map(|(k, &c)| crate::power::scaled(c, n) / (k + 1) as f64)
+        .map(|(k, &c)| crate::power::scaled(c, n) / (k as f64 + 1.0))
         .fold(0.0, |a, b| a + b)
 }
 

@@ -11,6 +11,14 @@
 //! Σ(c_t + 1) binomials, T + 1 running products and 3 T n counts;
 //! 3n + 1 indices (member order, type starts, the profile odometer).
 
+// Hot loops index their tables and add bounded integers directly (checked
+// arithmetic would cost the engines' speed). Why nothing is out of range or
+// overflows, listed in DEVELOPERS.md ("Panics"):
+// at most MAX_TYPES types and n <= 65,535 members; the odometer digit of type t stays
+// within 0..=c_t; scratch offsets are below `need`, checked by `try_count_for`; counts
+// use the checked `Counter`.
+#![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
+
 use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
 use crate::count::{binomial, Counter};
 use crate::limits::MAX_ATTRIBUTES;

@@ -12,6 +12,14 @@
 //! space O(q) words per thread. The result is exact: every count is below
 //! the product of the primes, so its residues determine it.
 
+// Hot loops index their tables and add bounded integers directly (checked
+// arithmetic would cost the engines' speed). Why nothing is out of range or
+// overflows, listed in DEVELOPERS.md ("Panics"):
+// residues are below 2^30, so the sum of two fits in u32 and a product of two in u64;
+// table indices are sums capped at `cap` (the dense engine's bound); the prime count k =
+// (n + 2) / 29 + 1 is small; Garner's digits are reduced modulo their prime.
+#![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
+
 use alloc::vec;
 use alloc::vec::Vec;
 

@@ -22,6 +22,30 @@ fn main() -> ExitCode {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let fuzz_dir = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
     match args.first().map(String::as_str) {
+        Some("show") => {
+            // The rule an `engines` input describes, and each engine's winning count.
+            let Some(file) = args.get(1) else { return usage() };
+            let Ok(input) = std::fs::read(file) else {
+                return usage();
+            };
+            let mut r = clout_fuzz::targets::reader::Reader::new(&input);
+            let rule = clout_fuzz::targets::engines::rule(&mut r);
+            println!("{rule:#?}");
+            if let Some(rule) = rule {
+                for e in clout_core::Engine::ALL {
+                    let a = clout_core::analyze_with::<_, clout_core::Count1024>(&rule, e);
+                    println!(
+                        "{}: {:?}",
+                        e.name(),
+                        a.map(|a| (
+                            a.rule.winning,
+                            a.members.iter().map(|m| m.swings).collect::<Vec<_>>()
+                        ))
+                    );
+                }
+            }
+            ExitCode::SUCCESS
+        }
         Some("seeds") => {
             seeds(&fuzz_dir);
             ExitCode::SUCCESS
