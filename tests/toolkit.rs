@@ -77,7 +77,8 @@ fn threshold_tables(n: usize, max_w: u64) -> BTreeMap<u32, u64> {
 #[test]
 fn dedekind_numbers() {
     // Dedekind numbers (monotone Boolean functions of n variables, the
-    // constants included): 3, 6, 20, 168, 7581 for n = 1..5 (OEIS A000372).
+    // constants included): 3, 6, 20, 168, 7581 for n = 1..5 (OEIS A000372,
+    // confirmed with the search tool).
     let counts: Vec<usize> = (1..=5).map(|n| monotone_functions(n).len()).collect();
     assert_eq!(counts, vec![3, 6, 20, 168, 7581]);
 }
@@ -156,12 +157,14 @@ fn of_the_168_monotone_rules_on_four_members_150_are_weighted() {
 
 #[test]
 fn two_chambers_and_an_executive_are_not_weighted() {
-    // Taylor & Zwicker, Simple Games (1999), ch. 1 (from memory): the rule
-    // "more than half of each chamber and the executive, or two thirds of
-    // each chamber" is not a weighted game; a trading transfer swaps members
-    // between the coalition (executive, half the lower chamber, half the
-    // upper) and (two thirds of each chamber) to make two losing ones. It
-    // has dimension 2 (one weighted game per chamber; same source).
+    // Taylor & Zwicker, Simple Games (1999), from memory: the rule "more
+    // than half of each chamber and the executive, or two thirds of each
+    // chamber" (the federal system) is not a weighted game, shown by a
+    // trading transfer, and has dimension 2. A 2-trade by hand: with S = 290
+    // representatives and 66 senators, S + a senator passes (override) and S
+    // + a representative fails; with T = 289 and 67, T + a representative
+    // passes and T + a senator fails; the two passing and two failing
+    // coalitions hold the same members.
     let rule = clout::scenarios::federal_536();
     let (table, level) = weighted::table_for(&rule).unwrap();
     assert_eq!(level, weighted::Level::Types);

@@ -78,13 +78,18 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
         "  {how} ({} members; names below are A's).\n",
         drafting::thousands(n)
     );
+    for r in [ra, rb] {
+        if let Some(note) = drafting::binary_note(r) {
+            out.push_str(&note);
+        }
+    }
     match answer {
         Equivalence::Same { profiles } => {
             let checked = if profiles as u128 == 1u128 << n.min(127) {
                 format!("all {} coalitions", drafting::coalitions(n))
             } else {
                 format!(
-                    "all {} patterns of members interchangeable in both (so on all {} coalitions)",
+                    "all {} patterns of members interchangeable in both, so on all {} coalitions",
                     drafting::thousands(profiles),
                     drafting::coalitions(n)
                 )
@@ -255,7 +260,8 @@ fn changes(
     }
     let _ = writeln!(
         out,
-        "  Probability of passage: A {:.6}, B {:.6}.\n\n{MODEL}",
-        pa.passage_probability, pb.passage_probability
+        "  Probability of passage: A {}, B {}.\n\n{MODEL}",
+        drafting::probability(pa.passage_probability),
+        drafting::probability(pb.passage_probability)
     );
 }

@@ -16,12 +16,27 @@ pub const BUDGET: u128 = 50_000_000_000;
 
 /// `KIND: TITLE, rule `NAME`` and the rule's text, then a blank line.
 pub fn heading(kind: &str, input: &Input, rule: &CompiledRule) -> String {
-    format!(
+    let mut out = format!(
         "{kind}: {}, rule `{}`\n  {}\n\n",
         input.title(),
         rule.name,
         rule.text
-    )
+    );
+    if let Some(note) = binary_note(rule) {
+        out.push_str(&note);
+    }
+    out
+}
+
+/// For rules with four-state conditions: what this analysis takes them to mean.
+pub fn binary_note(rule: &CompiledRule) -> Option<String> {
+    rule.rule.has_linear().then(|| {
+        format!(
+            "Note: rule `{}` has four-state conditions (abstentions, attendance); like the power\n\
+             indices, this takes them in the yes/no model: every member present, voting yes or no.\n\n",
+            rule.name
+        )
+    })
 }
 
 /// Member names, with runs of a group written `NAMEi..NAMEj`; `none` for no one.
@@ -125,5 +140,15 @@ pub fn coalitions(n: usize) -> String {
         thousands(1u64 << n)
     } else {
         format!("2^{n}")
+    }
+}
+
+/// A probability to six decimals, or in scientific notation when it would
+/// print as 0.000000 without being 0.
+pub fn probability(p: f64) -> String {
+    if p > 0.0 && p < 5e-7 {
+        format!("{p:.3e}")
+    } else {
+        format!("{p:.6}")
     }
 }

@@ -44,17 +44,21 @@ pub fn run(args: &SimplifyArgs) -> Result<Outcome, Failure> {
         Err(e @ clout::toolkit::Error::TooLarge { .. }) => return too_large(&input, rule, e, args.budget),
         Err(e) => return Err(drafting::failure(&rule.name, e)),
     };
-    let unit = match level {
-        Level::Members => "coalitions",
-        Level::Types => "patterns of interchangeable members",
+    // With one member per type, patterns are coalitions.
+    let singletons = level == Level::Members || table.types().iter().all(|t| t.len() == 1);
+    let unit = if singletons {
+        "coalitions"
+    } else {
+        "patterns of interchangeable members"
     };
-    let everything = match level {
-        Level::Members => format!("all {} coalitions", drafting::coalitions(n)),
-        Level::Types => format!(
-            "all {} patterns of interchangeable members (so on all {} coalitions)",
+    let everything = if singletons {
+        format!("all {} coalitions", drafting::coalitions(n))
+    } else {
+        format!(
+            "all {} patterns of interchangeable members, so on all {} coalitions",
             thousands(table.len()),
             drafting::coalitions(n)
-        ),
+        )
     };
 
     let dummies = weighted::dummies(&table);
