@@ -384,6 +384,7 @@ mod tests {
     }
 
     #[test]
+    #[cfg(feature = "alloc")] // 40,000 members need the alloc build's member limit
     fn shape_of_a_large_rule_is_quick() {
         // The fuzzer's case: two far-apart blocks of identical members.
         let mut weights = vec![1u64; 20_000];
