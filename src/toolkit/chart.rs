@@ -84,7 +84,11 @@ pub fn svg(chart: &Chart) -> String {
     let (lo, hi) = range(&chart.x);
     // Widen to whole tick steps, so both ends carry a label.
     let step = tick_step(hi - lo);
-    let (x0, x1) = ((lo / step).floor() * step, (hi / step).ceil() * step);
+    // (A quota rounded up to an integer lies a hair above its share: no extra step for it.)
+    let (x0, x1) = (
+        (lo / step + 1e-6).floor() * step,
+        (hi / step - 1e-6).ceil() * step,
+    );
     let x_ticks = ticks(x0, x1);
     let px = |x: f64| LEFT + (x - x0) / (x1 - x0).max(f64::MIN_POSITIVE) * PLOT_WIDTH;
     for (k, panel) in chart.panels.iter().enumerate() {
