@@ -440,7 +440,13 @@ fn bad_input_exits_2_with_a_message() {
         (&["decide", "--yes", "a"], "no rule given"),
         (&["check"], "no rule given"),
         (
-            &["report", "examples/two-chamber.clout", "--budget", "10"],
+            &[
+                "report",
+                "examples/two-chamber.clout",
+                "--budget",
+                "10",
+                "--exact",
+            ],
             "over the budget of 10",
         ),
         (
@@ -464,15 +470,27 @@ fn bad_input_exits_2_with_a_message() {
 
 #[test]
 fn work_over_the_budget_is_refused_at_once() {
-    // 20,000 members need counts of 65,600 bits; the estimate includes that width.
-    let run = clout_with_input(&["report", "-"], "members m x20000\nrule r = count > 1/2\n");
+    // 20,000 members need counts of 65,600 bits; the estimate includes that
+    // width. With --exact the report is refused at once; without, it is
+    // approximated and says so.
+    let src = "members m x20000\nrule r = count > 1/2\n";
+    let run = clout_with_input(&["report", "-", "--exact"], src);
     assert_eq!(run.code, 2);
+    assert!(run.stderr.contains("over the budget of 5.0e10"), "{}", run.stderr);
     assert!(
-        run.stderr.contains("over the budget of 50000000000"),
+        run.stderr.contains("hint: raise the limits with --budget STEPS"),
         "{}",
         run.stderr
     );
-    assert!(run.stderr.contains("hint: raise the limit with --budget STEPS"));
+    // (A smaller body keeps the approximate run quick in debug builds.)
+    let small = "members m x300\nrule r = count > 1/2\n";
+    let run = clout_with_input(&["report", "-", "--format", "csv", "--budget", "1"], small);
+    assert_eq!(run.code, 0, "{}", run.stderr);
+    assert!(
+        run.stdout.starts_with("member,penrose,penrose_half_width"),
+        "{}",
+        &run.stdout[..80.min(run.stdout.len())]
+    );
 }
 
 #[test]

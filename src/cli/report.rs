@@ -93,8 +93,9 @@ fn reason(err: clout::Error) -> String {
             )
         }
         clout::Error::TooCostly { estimate, budget } => format!(
-            "the cheapest exact engine needs about {:.1e} steps, over the budget of {:.1e}",
-            estimate as f64, budget as f64
+            "the cheapest exact engine needs about {} steps, over the budget of {}",
+            steps(estimate),
+            steps(budget)
         ),
         other => other.to_string(),
     }
@@ -225,6 +226,15 @@ fn explain(rule: &CompiledRule, args: &ReportArgs) -> String {
     }
     out.push('\n');
     out
+}
+
+/// A step count: in full below a million, else as `1.2e9`.
+fn steps(n: u128) -> String {
+    if n < 1_000_000 {
+        n.to_string()
+    } else {
+        format!("{:.1e}", n as f64)
+    }
 }
 
 fn bytes(b: u64) -> String {
