@@ -1,7 +1,9 @@
 //! Every fast engine agrees exactly with enumeration, and the indices obey
 //! the identities of the theory, on random weighted and compound rules.
 
-use clout::{analyze_with, Analysis, Atom, Coalition, Count1024, Counter, Engine, Node, Rule};
+use clout::{
+    analyze_with, Analysis, Atom, Coalition, Condition, Count1024, Counter, Engine, Linear, Node, Rule,
+};
 use proptest::prelude::*;
 
 type C = Count1024;
@@ -232,6 +234,108 @@ proptest! {
         for i in 0..s.n {
             if s.weights[i] <= s.weights[who] {
                 prop_assert!(a.members[i].swings <= a.members[who].swings);
+            }
+        }
+    }
+}
+
+// ---- four-state conditions and the swings-only scope ----
+
+/// A compound rule whose conditions mix yes-sum thresholds with four-state
+/// linear forms (`yes*Y + no*N + abstain*A >= bound`, monotone), over a
+/// random AND/OR tree; `one_attribute` puts every condition on attribute 0,
+/// which sends the swings-only dense count down the residue path.
+fn four_state(max_n: usize, max_weight: u64) -> impl Strategy<Value = Rule<Vec<u64>>> {
+    (1..=max_n, 1usize..=3, 1usize..=5, any::<bool>()).prop_flat_map(move |(n, attrs, k, one_attribute)| {
+        let condition = (
+            0..attrs as u16,
+            any::<bool>(),
+            0i32..4,
+            -3i32..4,
+            -3i32..4,
+            -1.2f64..1.2,
+        );
+        (
+            prop::collection::vec(0..=max_weight, n * attrs),
+            prop::collection::vec(condition, k),
+            formula_over(k),
+        )
+            .prop_map(move |(weights, raw, formula)| {
+                let conditions: Vec<Condition> = raw
+                    .iter()
+                    .map(|&(a, linear, yes, no, abstain, share)| {
+                        let a = if one_attribute { 0 } else { a };
+                        let total: u64 = weights[a as usize * n..(a as usize + 1) * n].iter().sum();
+                        let bound = (total as f64 * share).round() as i128;
+                        if linear {
+                            // Monotone: the yes coefficient is the largest.
+                            let yes = yes.max(no).max(abstain).max(0);
+                            Condition::Linear(Linear {
+                                attribute: a,
+                                yes,
+                                no,
+                                abstain,
+                                bound,
+                            })
+                        } else {
+                            Condition::Yes(Atom {
+                                attribute: a,
+                                quota: bound.clamp(0, total as i128 + 1) as u64,
+                            })
+                        }
+                    })
+                    .collect();
+                Rule::with_conditions(n, weights, &conditions, &formula).expect("a valid rule")
+            })
+    })
+}
+
+fn swings_only(rule: &Rule<Vec<u64>>, engine: Engine) -> Result<Analysis<C>, clout::Error> {
+    clout::analyze_opts(
+        rule,
+        &clout::Options {
+            engine: Some(engine),
+            scope: clout::engine::Scope::Swings,
+            budget: u128::MAX,
+            ..clout::Options::default()
+        },
+    )
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+
+    #[test]
+    fn engines_agree_on_four_state_rules(rule in four_state(10, 6)) {
+        let oracle = analyze_with::<_, C>(&rule, Engine::Enumerate).unwrap();
+        // Enumeration against the definition, coalition by coalition.
+        let n = rule.members();
+        let winning = (0..1u64 << n).filter(|&m| passes(&rule, m)).count();
+        prop_assert_eq!(oracle.rule.winning.to_string(), winning.to_string());
+        for engine in [Engine::Profile, Engine::Diagram, Engine::Dense] {
+            match analyze_with::<_, C>(&rule, engine) {
+                Ok(other) => assert_same(&oracle, &other, engine == Engine::Profile)?,
+                Err(clout::Error::EngineUnsuitable { .. }) if engine == Engine::Dense => {}
+                Err(e) => return Err(TestCaseError::fail(format!("{}: {e}", engine.name()))),
+            }
+        }
+    }
+
+    #[test]
+    fn swings_only_scope_agrees_with_enumeration(rule in four_state(12, 9)) {
+        let oracle = analyze_with::<_, C>(&rule, Engine::Enumerate).unwrap();
+        for engine in [Engine::Enumerate, Engine::Profile, Engine::Diagram, Engine::Dense] {
+            match swings_only(&rule, engine) {
+                Ok(a) => {
+                    prop_assert_eq!(a.rule.winning, oracle.rule.winning, "{}", engine.name());
+                    prop_assert_eq!(a.rule.proper, oracle.rule.proper, "{}", engine.name());
+                    prop_assert_eq!(a.rule.strong, oracle.rule.strong, "{}", engine.name());
+                    for (x, y) in a.members.iter().zip(&oracle.members) {
+                        prop_assert_eq!(x.swings, y.swings, "{}", engine.name());
+                    }
+                }
+                Err(clout::Error::EngineUnsuitable { .. }) if engine == Engine::Dense => {}
+                Err(e) => return Err(TestCaseError::fail(format!("{}: {e}", engine.name()))),
             }
         }
     }

@@ -51,7 +51,7 @@ pub struct Sampling {
     pub confidence: f64,
     /// Stop after this many samples even if the target is not met.
     pub max_samples: u64,
-    /// Worker threads (`std` only; 0 means every core). Results do not depend on it.
+    /// Worker threads (`std` only; 0 means [`crate::threads::available`]). Results do not depend on it.
     pub threads: usize,
 }
 
@@ -202,7 +202,7 @@ fn run_round<F>(n: usize, s: &Sampling, first: u64, count: u64, batch: &F, hits:
 where
     F: Fn(&mut Rng, &mut [u64]) + Sync,
 {
-    let cores = std::thread::available_parallelism().map_or(1, |c| c.get());
+    let cores = crate::threads::available();
     let threads = if s.threads == 0 { cores } else { s.threads }.clamp(1, count as usize);
     let totals: Vec<Vec<u64>> = std::thread::scope(|scope| {
         let handles: Vec<_> = (0..threads)

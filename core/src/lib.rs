@@ -105,6 +105,8 @@ mod analysis;
 pub mod approx;
 #[cfg(feature = "alloc")]
 pub mod ternary;
+#[cfg(feature = "std")]
+pub mod threads;
 
 pub use ballot::{Ballot, Vote};
 pub use coalition::{Coalition, Members};

@@ -344,10 +344,7 @@ fn reconstruct_exact<C: Counter>(residues: &[u64], primes: &[u64]) -> Result<C, 
 
 #[cfg(feature = "std")]
 fn run_passes(shape: &Shape<'_>, primes: &[u64]) -> Vec<Pass> {
-    let threads = std::thread::available_parallelism()
-        .map_or(1, |n| n.get())
-        .min(primes.len())
-        .max(1);
+    let threads = crate::threads::available().min(primes.len()).max(1);
     let mut out: Vec<Option<Pass>> = (0..primes.len()).map(|_| None).collect();
     std::thread::scope(|scope| {
         let chunks: Vec<_> = out
