@@ -3,7 +3,7 @@
 //! Every value is checked on every engine that can handle the rule, so a
 //! wrong engine cannot hide behind a right one.
 
-use clout::{analyze, analyze_with, Analysis, Atom, Count1024, Counter, Engine, Node, Rule};
+use clout::{analyze, analyze_with, Analysis, Count1024, Counter, Engine, Rule};
 
 type C = Count1024;
 
@@ -90,55 +90,14 @@ fn un_security_council() {
     });
 }
 
-/// 435 + 100 equal members and an executive: (> 1/2 of both chambers and
-/// the executive) or (>= 2/3 of both chambers).
-fn two_chambers() -> Rule<Vec<u64>> {
-    let n = 536;
-    let mut w = vec![0u64; 3 * n];
-    w[..435].fill(1); // attribute 0: lower chamber
-    w[n + 435..n + 535].fill(1); // attribute 1: upper chamber
-    w[2 * n + 535] = 1; // attribute 2: the executive
-    let atoms = [
-        Atom {
-            attribute: 0,
-            quota: 218,
-        }, // more than half of 435
-        Atom {
-            attribute: 1,
-            quota: 51,
-        }, // more than half of 100
-        Atom {
-            attribute: 2,
-            quota: 1,
-        }, // the executive
-        Atom {
-            attribute: 0,
-            quota: 290,
-        }, // two thirds of 435
-        Atom {
-            attribute: 1,
-            quota: 67,
-        }, // two thirds of 100 (66.67 rounds up)
-    ];
-    let f = [
-        Node::Atom(0),
-        Node::Atom(1),
-        Node::Atom(2),
-        Node::All(3),
-        Node::Atom(3),
-        Node::Atom(4),
-        Node::All(2),
-        Node::Any(2),
-    ];
-    Rule::new(n, w, &atoms, &f).unwrap()
-}
-
 #[test]
 fn two_chamber_executive_override() {
     // Taylor 1995, Mathematics and Politics (from memory): the executive's
     // normalized Banzhaf index is 0.0380 and its Shapley-Shubik index 0.1605,
     // to three significant figures.
-    let rule = two_chambers();
+    // 435 + 100 equal members and an executive: (> 1/2 of both chambers and
+    // the executive) or (>= 2/3 of both chambers); quotas 218, 51, 290, 67.
+    let rule = clout::scenarios::federal_536();
     let a = analyze::<_, C>(&rule).unwrap();
     assert_eq!(a.plan.engine, Engine::Profile);
     let t = a.table();
