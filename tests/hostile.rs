@@ -198,7 +198,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
     (
         "game-weight-sum-overflow.clout",
         "1:1",
-        "the weights add up to more than 2^64 - 1",
+        "the weights add up to more than 2^64 - 4",
     ),
     (
         "group-huge-count.clout",

@@ -7,7 +7,7 @@
 //! `clout_dsl::syntax` (`MAX_SOURCE_LEN`, `MAX_NAME_LEN`); SECURITY.md lists them.
 
 use clout_core::engine::Scope;
-use clout_core::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES};
+use clout_core::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES, MAX_TOTAL};
 use clout_core::{
     analyze_opts, image, Atom, Condition, Engine, Error, ImageError, Linear, Node, Options, Rule,
 };
@@ -163,7 +163,12 @@ fn text_that_is_not_utf8() {
 
 #[test]
 fn weight_size_and_weight_sums() {
-    assert!(clout_dsl::compile("member a w=18446744073709551615\nrule r = w >= 1\n").is_ok());
+    // A number may be up to 2^64 - 1; one attribute's total up to 2^64 - 4.
+    assert!(clout_dsl::compile("member a w=18446744073709551612\nrule r = w >= 1\n").is_ok());
+    assert_eq!(
+        first_error("member a w=18446744073709551615\nrule r = w >= 1\n"),
+        "1:10: the weights of `w` add up to more than 2^64 - 4"
+    );
     assert_eq!(
         first_error("member a w=18446744073709551616\nrule r = w >= 1\n"),
         "1:12: the number 18446744073709551616 is too large"
@@ -172,15 +177,21 @@ fn weight_size_and_weight_sums() {
         Rule::weighted(1, vec![u64::MAX, 1]).unwrap_err(),
         Error::WeightSumOverflow { attribute: 0 }
     );
-    assert!(Rule::weighted(1, vec![u64::MAX - 1, 1]).is_ok());
+    // The largest total is 2^64 - 4, so that `total + 1`, the quota of a
+    // condition nobody meets, is a u64 (clout_core::limits::MAX_TOTAL).
+    assert!(Rule::weighted(1, vec![MAX_TOTAL - 1, 1]).is_ok());
+    assert_eq!(
+        Rule::weighted(1, vec![MAX_TOTAL, 1]).unwrap_err(),
+        Error::WeightSumOverflow { attribute: 0 }
+    );
     assert_eq!(
         first_error("member a w=18446744073709551615\nmember b w=1\nrule r = w >= 1\n"),
-        "1:10: the weights of `w` add up to more than 2^64 - 1"
+        "1:10: the weights of `w` add up to more than 2^64 - 4"
     );
     // An image whose weights overflow, with a correct length and checksum.
-    let mut bytes = image::encode(&Rule::weighted(1, vec![u64::MAX - 1, 1]).unwrap());
+    let mut bytes = image::encode(&Rule::weighted(1, vec![MAX_TOTAL - 1, 1]).unwrap());
     let at = image::HEADER_LEN + 1 + 8; // the second weight, 8 bytes wide
-    bytes[at] = 2;
+    bytes[at] = 2; // total MAX_TOTAL + 1
     let body = bytes.len() - image::CHECKSUM_LEN;
     let crc = image::crc32(&bytes[..body]);
     bytes[body..].copy_from_slice(&crc.to_le_bytes());
@@ -265,6 +276,19 @@ fn four_state_bounds_at_the_ends_of_i128() {
     assert_eq!(low.atoms()[0].quota, 0);
     let high = Rule::with_conditions(2, weights, &[linear(i128::MAX)], &[Node::Atom(0)]).unwrap();
     assert_eq!(high.atoms()[0].quota, high.total(0) + 1);
+    // The fuzzer's case: a condition nobody meets (0 Y - 4 N - 4 A >= 2^63)
+    // on the largest total. Its quota total + 1 must still be out of reach.
+    let never = Condition::Linear(Linear {
+        attribute: 0,
+        yes: 0,
+        no: -4,
+        abstain: -4,
+        bound: 1 << 63,
+    });
+    let rule = Rule::with_conditions(1, vec![MAX_TOTAL], &[never], &[Node::Atom(0)]).unwrap();
+    assert_eq!(rule.atoms()[0].quota, MAX_TOTAL + 1);
+    let a = clout_core::analyze::<_, u128>(&rule).unwrap();
+    assert_eq!(a.rule.winning, 0);
 }
 
 #[test]

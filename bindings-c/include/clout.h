@@ -165,7 +165,7 @@ enum clout_result
    */
   CLOUT_RESULT_TOO_DEEP = 205,
   /**
-   * An attribute's weights add up to more than 2^64 - 1.
+   * An attribute's weights add up to more than 2^64 - 4.
    */
   CLOUT_RESULT_WEIGHT_SUM_OVERFLOW = 206,
   /**

@@ -68,7 +68,7 @@ pub enum clout_result {
     TooManyNodes = 204,
     /// Operators nested deeper than the limit (32).
     TooDeep = 205,
-    /// An attribute's weights add up to more than 2^64 - 1.
+    /// An attribute's weights add up to more than 2^64 - 4.
     WeightSumOverflow = 206,
     /// A condition uses an attribute that does not exist.
     UnknownAttribute = 207,
@@ -178,7 +178,7 @@ impl clout_result {
             TooManyConditions => "the rule has more than 64 conditions",
             TooManyNodes => "the formula has more than 128 nodes",
             TooDeep => "the formula nests deeper than 32 levels",
-            WeightSumOverflow => "an attribute's weights add up to more than 2^64 - 1",
+            WeightSumOverflow => "an attribute's weights add up to more than 2^64 - 4",
             UnknownAttribute => "a condition uses an attribute that does not exist",
             UnknownCondition => "a formula node uses a condition that does not exist",
             MalformedFormula => "the formula is not a single tree",

@@ -24,7 +24,8 @@ pub enum Error {
     TooManyNodes { nodes: usize, limit: usize },
     /// Operators nested deeper than [`crate::limits::MAX_DEPTH`].
     TooDeep { depth: usize, limit: usize },
-    /// The weights of one attribute add up to more than `u64::MAX`.
+    /// The weights of one attribute add up to more than
+    /// [`crate::limits::MAX_TOTAL`] (2^64 - 4).
     WeightSumOverflow { attribute: usize },
     /// An atom names an attribute that does not exist.
     UnknownAttribute { atom: usize, attribute: usize },
@@ -80,7 +81,7 @@ impl fmt::Display for Error {
             }
             TooDeep { depth, limit } => write!(f, "nesting depth {depth} exceeds the limit of {limit}"),
             WeightSumOverflow { attribute } => {
-                write!(f, "the weights of attribute {attribute} add up to more than 2^64 - 1")
+                write!(f, "the weights of attribute {attribute} add up to more than 2^64 - 4")
             }
             UnknownAttribute { atom, attribute } => {
                 write!(f, "condition {atom} uses attribute {attribute}, which does not exist")

@@ -34,7 +34,7 @@
 
 use core::fmt;
 
-use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_MEMBERS, MAX_NODES};
+use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_MEMBERS, MAX_NODES, MAX_TOTAL};
 use crate::{Atom, Condition, Error, Linear, Node, Rule};
 
 /// The first four bytes of every image. The high first byte catches
@@ -491,6 +491,7 @@ fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
     for a in 0..attributes {
         (0..n)
             .try_fold(0u64, |sum, i| sum.checked_add(checked.weight(a, i)))
+            .filter(|&t| t <= MAX_TOTAL)
             .ok_or(Error::WeightSumOverflow { attribute: a })?;
     }
     for k in 0..h.nodes {

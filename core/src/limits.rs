@@ -29,6 +29,16 @@ pub const MAX_NODES: usize = 128;
 /// Deepest nesting of AND/OR operators in a formula.
 pub const MAX_DEPTH: usize = 32;
 
+/// Largest sum of one attribute's weights: 2^64 - 4.
+///
+/// A condition no coalition can meet has the two-state quota `total + 1`,
+/// which must be a `u64`; the decision diagram also keeps the two values
+/// above `total + 1` for its TRUE and FALSE node keys. (Differential fuzzing
+/// found both: with a total of 2^64 - 1 an unreachable four-state condition
+/// got the quota 2^64 - 1 and the full coalition passed, and diagram keys
+/// collided with TRUE.) Larger sums are [`crate::Error::WeightSumOverflow`].
+pub const MAX_TOTAL: u64 = u64::MAX - 3;
+
 /// One row of the limits table: name, value, what it bounds.
 pub const TABLE: [(&str, usize, &str); 5] = [
     ("members", MAX_MEMBERS, "members in one rule"),

@@ -11,7 +11,7 @@
 //! bound on a sum of non-negative weights, so every rule that can be built is
 //! monotone (adding a yes vote never turns a pass into a fail).
 
-use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES};
+use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES, MAX_TOTAL};
 use crate::{Coalition, Error};
 
 /// One threshold condition: the sum of `attribute` over the yes-voters is at
@@ -174,6 +174,7 @@ impl<W: AsRef<[u64]>> Rule<W> {
             let total = row
                 .iter()
                 .try_fold(0u64, |acc, &w| acc.checked_add(w))
+                .filter(|&t| t <= MAX_TOTAL)
                 .ok_or(Error::WeightSumOverflow { attribute: a })?;
             // attributes <= MAX_ATTRIBUTES was checked above.
             let _ = totals.push(total);

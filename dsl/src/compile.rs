@@ -15,7 +15,7 @@
 
 use std::collections::HashMap;
 
-use clout_core::limits::{MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES};
+use clout_core::limits::{MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES, MAX_TOTAL};
 use clout_core::quota::{self, Bound};
 use clout_core::{Atom, Condition as CoreCondition, Error as CoreError, Linear, Node, Rule};
 
@@ -238,10 +238,11 @@ fn compile_game(source: &str, g: &Game) -> Result<RuleFile, Vec<Diagnostic>> {
         .iter()
         .flat_map(|w| std::iter::repeat_n(w.weight, w.repeat as usize))
         .collect();
-    let Some(total) = weights.iter().try_fold(0u64, |s, &w| s.checked_add(w)) else {
+    let total = weights.iter().try_fold(0u64, |s, &w| s.checked_add(w));
+    let Some(total) = total.filter(|&t| t <= MAX_TOTAL) else {
         return Err(vec![Diagnostic::error(
             g.span,
-            "the weights add up to more than 2^64 - 1",
+            "the weights add up to more than 2^64 - 4",
         )]);
     };
     let (q, q_span) = g.quota;
@@ -820,7 +821,9 @@ impl<'a> Compiler<'a> {
         let mut totals: Vec<Option<u64>> = vec![Some(0); self.attributes.len()];
         for weights in &self.member_weights {
             for &(a, w) in weights {
-                totals[a] = totals[a].and_then(|t| t.checked_add(w));
+                totals[a] = totals[a]
+                    .and_then(|t| t.checked_add(w))
+                    .filter(|&t| t <= MAX_TOTAL);
             }
         }
         for (a, t) in totals.iter().enumerate() {
@@ -829,7 +832,7 @@ impl<'a> Compiler<'a> {
                 self.errors.push(
                     Diagnostic::error(
                         *span,
-                        format!("the weights of `{name}` add up to more than 2^64 - 1"),
+                        format!("the weights of `{name}` add up to more than 2^64 - 4"),
                     )
                     .with_hint("express the weights in a coarser unit"),
                 );

@@ -63,28 +63,8 @@ pub struct DiagramStats {
 const TRUE_KEY: u64 = u64::MAX;
 const FALSE_KEY: u64 = u64::MAX - 1;
 
-/// Largest attribute total (of an attribute some condition uses) the diagram
-/// handles. Node keys are class lower bounds, which reach the remaining total
-/// plus one for a quota out of reach; the two largest `u64` values are the
-/// TRUE and FALSE keys, so totals stop three below them. (Found by
-/// differential fuzzing: a total of 2^64 - 1 made a class bound equal the
-/// TRUE key and every coalition "win".) Larger totals go to another engine.
-pub const MAX_TOTAL: u64 = u64::MAX - 3;
-
-/// Refuses rules with an attribute total beyond [`MAX_TOTAL`].
-pub(crate) fn check_totals<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<(), Error> {
-    let too_large = rule
-        .atoms()
-        .iter()
-        .any(|a| rule.total(usize::from(a.attribute)) > MAX_TOTAL);
-    if too_large {
-        Err(Error::EngineUnsuitable {
-            engine: Engine::Diagram,
-        })
-    } else {
-        Ok(())
-    }
-}
+// Class lower bounds reach at most total + 1 <= MAX_TOTAL + 1 = 2^64 - 3,
+// below both keys (crate::limits::MAX_TOTAL keeps them apart).
 
 /// The 1-D equivalence classes of one atom's residual quota.
 struct AtomClasses {
@@ -326,7 +306,6 @@ pub(crate) fn build<W: AsRef<[u64]>>(
     order: Vec<usize>,
     max_nodes: usize,
 ) -> Result<Diagram, Error> {
-    check_totals(rule)?;
     let n = rule.members();
     let atoms = rule.atoms();
     let m = atoms.len();
@@ -732,39 +711,30 @@ mod tests {
     use proptest::prelude::*;
 
     #[test]
-    fn totals_at_the_top_of_u64_are_left_to_other_engines() {
+    fn totals_at_the_top_of_u64() {
         // The fuzzer's case: weights summing to exactly 2^64 - 1 and that
-        // quota, so only the coalition of every weighted member wins. The
-        // diagram gave 4,096 winning coalitions of 4,096.
+        // quota. The diagram gave 4,096 winning coalitions of 4,096 (a class
+        // bound equal to the TRUE key); such totals are now refused by
+        // every rule, and at the limit the diagram is exact.
         let mut weights = vec![u64::MAX - 35, 2, 0, 6, 5, 5, 4, 1, 0, 3, 3, 6];
         weights.extend([0u64; 12]);
-        weights[13] = u64::MAX - 48;
-        let rule = Rule::new(
-            12,
-            weights,
-            &[Atom {
-                attribute: 0,
-                quota: u64::MAX,
-            }],
-            &[Node::Atom(0)],
-        )
-        .unwrap();
-        assert_eq!(rule.total(0), u64::MAX);
+        let atoms = [Atom {
+            attribute: 0,
+            quota: u64::MAX,
+        }];
         assert_eq!(
-            analyze_with::<_, u128>(&rule, Engine::Diagram).unwrap_err(),
-            Error::EngineUnsuitable {
-                engine: Engine::Diagram
-            }
+            Rule::new(12, weights, &atoms, &[Node::Atom(0)]).unwrap_err(),
+            Error::WeightSumOverflow { attribute: 0 }
         );
-        let exact = analyze_with::<_, u128>(&rule, Engine::Enumerate).unwrap();
-        assert_eq!(exact.rule.winning, 4); // the two weightless members are free
-        let planned = crate::analysis::analyze::<_, u128>(&rule).unwrap();
-        assert_ne!(planned.plan.engine, Engine::Diagram);
-        assert_eq!(planned.rule.winning, 4);
-        // Just inside the limit the diagram is exact.
-        let rule = Rule::weighted(MAX_TOTAL, vec![MAX_TOTAL - 3, 1, 1, 1]).unwrap();
+        let max = crate::limits::MAX_TOTAL;
+        let rule = Rule::weighted(max, vec![max - 3, 1, 1, 1, 0]).unwrap();
         let d = analyze_with::<_, u128>(&rule, Engine::Diagram).unwrap();
-        assert_eq!(d.rule.winning, 1);
+        assert_eq!(d.rule.winning, 2); // all four weighted members, with or without the fifth
+        let e = analyze_with::<_, u128>(&rule, Engine::Enumerate).unwrap();
+        assert_eq!(d.rule.winning, e.rule.winning);
+        for (a, b) in d.members.iter().zip(&e.members) {
+            assert_eq!(a.swings, b.swings);
+        }
     }
 
     fn rule_from(n: usize, w: Vec<u64>, q: [u64; 3], shape: u8) -> Rule<Vec<u64>> {
