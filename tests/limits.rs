@@ -308,3 +308,23 @@ fn c_abi_power_capacity() {
     assert_eq!(code, clout_result::PowerCapacity);
     assert_eq!(clout_rule_free(handle), clout_result::Ok);
 }
+
+#[test]
+fn the_command_line_keeps_a_forced_engine_to_the_budget() {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_clout"))
+        .args([
+            "report",
+            "examples/compact.clout",
+            "--engine",
+            "enumerate",
+            "--budget",
+            "10",
+        ])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("the clout binary runs");
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("over the budget of 10"), "{stderr}");
+    assert!(out.stdout.is_empty());
+}

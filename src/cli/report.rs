@@ -263,7 +263,17 @@ pub fn analyse(
     let r = &rule.rule;
     let fail = |err: clout::Error| (Some(err), core_failure(rule, err));
     let (engine, cost) = match forced {
-        Some(e) => (e, clout::engine::cost(r, e).map_err(fail)?),
+        Some(e) => {
+            let cost = clout::engine::cost(r, e).map_err(fail)?;
+            // A forced engine keeps to --budget too, so it cannot run for hours unasked.
+            if cost > budget {
+                return Err(fail(clout::Error::TooCostly {
+                    estimate: cost,
+                    budget,
+                }));
+            }
+            (e, cost)
+        }
         None => {
             let plan = exact::choose_within(r, budget, memory).map_err(fail)?;
             (plan.engine, plan.cost)
