@@ -19,6 +19,10 @@ use std::time::{Duration, Instant};
 #[allow(dead_code)]
 mod targets;
 
+/// The two tests that run the binary many times take turns, so that one
+/// does not eat into the other's deadline on a small machine.
+static SERIAL: std::sync::Mutex<()> = std::sync::Mutex::new(());
+
 /// Longest a refusal may take before it counts as a hang. The slowest file
 /// takes about 0.25 s in a debug build; the hangs these files once caused
 /// (quadratic suggestions, stack exhaustion) took a minute or crashed.
@@ -32,6 +36,11 @@ struct Run {
 
 /// Runs clout with `args`, killing it at the deadline.
 fn run(args: &[&str]) -> Run {
+    run_within(args, DEADLINE)
+}
+
+/// Runs clout with `args`, killing it after `deadline`.
+fn run_within(args: &[&str], deadline: Duration) -> Run {
     let mut child = Command::new(env!("CARGO_BIN_EXE_clout"))
         .args(args)
         .current_dir(env!("CARGO_MANIFEST_DIR"))
@@ -52,7 +61,7 @@ fn run(args: &[&str]) -> Run {
         if let Some(status) = child.try_wait().expect("wait works") {
             break Some(status);
         }
-        if start.elapsed() > DEADLINE {
+        if start.elapsed() > deadline {
             let _ = child.kill();
             let _ = child.wait();
             break None;
@@ -128,7 +137,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
         "parentheses nested deeper than 64",
     ),
     (
-        "define-chain-5000.clout",
+        "define-chain-1000.clout",
         "36:8",
         "definitions nested deeper than 32",
     ),
@@ -434,6 +443,7 @@ fn the_corpus_has_at_least_fifty_files_and_each_is_pinned() {
 
 #[test]
 fn hostile_files_are_refused_with_a_located_error() {
+    let _turn = SERIAL.lock().unwrap_or_else(|e| e.into_inner());
     let mut slowest = (Duration::ZERO, String::new());
     for &(file, at, message) in EXPECTED {
         let rel = format!("tests/hostile/{file}");
@@ -463,6 +473,68 @@ fn hostile_files_are_refused_with_a_located_error() {
         }
     }
     eprintln!("slowest refusal: {:?} ({})", slowest.0, slowest.1);
+}
+
+/// Generated floods that once hung or crashed the compiler (each took a
+/// minute, or overflowed the stack): they must be refused with a located
+/// error before a deadline that is generous for a debug build.
+#[test]
+fn floods_of_errors_and_long_chains_are_refused_quickly() {
+    let _turn = SERIAL.lock().unwrap_or_else(|e| e.into_inner());
+    let dir = std::env::temp_dir().join(format!("clout-hostile-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let members: String = (0..5000).map(|i| format!("member m{i} seats=1\n")).collect();
+    let floods = [
+        // Unknown names: each once searched every name for a suggestion.
+        (
+            "unknown-names",
+            members.clone()
+                + &(0..5000)
+                    .map(|i| format!("rule r{i} = x{i} and seats >= 2\n"))
+                    .collect::<String>(),
+        ),
+        // Duplicates: each once scanned the file for the first one's line.
+        (
+            "duplicates",
+            "member m seats=1\n".repeat(20_000) + "rule r = seats >= 1\n",
+        ),
+        // One line of 10,000 unknown names, once printed whole under each error.
+        (
+            "long-line",
+            format!(
+                "member a seats=1\nrule r = {}\n",
+                (0..10_000)
+                    .map(|i| format!("zz{i}"))
+                    .collect::<Vec<_>>()
+                    .join(" and ")
+            ),
+        ),
+        // 50,000 chained definitions, declared bottom-up: overflowed the stack.
+        (
+            "definition-chain",
+            "member a w=1\nmember b w=1\ndefine d0 = w >= 1\n".to_string()
+                + &(1..50_000)
+                    .map(|i| format!("define d{i} = d{}\n", i - 1))
+                    .collect::<String>()
+                + "rule r = d49999\n",
+        ),
+    ];
+    for (name, text) in floods {
+        let path = dir.join(format!("{name}.clout"));
+        std::fs::write(&path, text).expect("writable");
+        let path = path.to_string_lossy().into_owned();
+        let r = run_within(&["check", &path], Duration::from_secs(20));
+        assert_eq!(r.code, Some(2), "{name}: {}", r.stderr);
+        assert!(
+            r.stderr.starts_with(&format!("{path}:")),
+            "{name}: {:.300}",
+            r.stderr
+        );
+        // At most 100 errors are shown, then a count of the rest.
+        assert!(r.stderr.matches(": error: ").count() <= 100, "{name}");
+        eprintln!("{name}: {:?}", r.elapsed);
+    }
+    let _ = std::fs::remove_dir_all(&dir);
 }
 
 fn replay(dir: &str) {
