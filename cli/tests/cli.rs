@@ -81,7 +81,7 @@ fn report_without_a_file_uses_the_demo() {
         .contains("governing instrument, applicable election law and certified counting procedures"));
     // The demo printed by `clout demo` is the file the report analysed.
     let demo = clout(&["demo"]);
-    assert_eq!(demo.stdout, include_str!("../examples/transit.clout"));
+    assert_eq!(demo.stdout, include_str!("../../examples/transit.clout"));
     let same = clout(&["report", "examples/transit.clout"]);
     assert_eq!(
         same.stdout.lines().skip(1).collect::<Vec<_>>(),

@@ -14,10 +14,10 @@ use clout::approx::{penrose_f64, sample_penrose, sample_shapley, Estimate, Sampl
 use clout_dsl::CompiledRule;
 use serde::Serialize;
 
-use super::input::Input;
-use super::report::{CAUTION, MODEL};
-use super::text::{self, Align, Table};
-use super::{Failure, Format, Outcome, ReportArgs};
+use crate::input::Input;
+use crate::report::{CAUTION, MODEL};
+use crate::text::{self, Align, Table};
+use crate::{Failure, Format, Outcome, ReportArgs};
 
 /// Most Monte Carlo orderings drawn for Shapley-Shubik (the achieved
 /// half-width is reported when this stops the sampler first).
@@ -137,7 +137,7 @@ pub fn run(input: &Input, rule: &CompiledRule, args: &ReportArgs, why: &str) -> 
         rule.rule.members(),
         args.tolerance
     );
-    let a = super::progress::with_progress(&label, || approximate(rule, args))?;
+    let a = crate::progress::with_progress(&label, || approximate(rule, args))?;
     let out = match args.format {
         Format::Text => text_report(input, rule, &a, why),
         Format::Json => json_report(input, rule, &a, why),

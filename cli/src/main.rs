@@ -1,4 +1,6 @@
-//! The `clout` command line: argument parsing, exit codes and output.
+//! The `clout` command: exact power reports, single votes, checks and
+//! drafting tools for rule files written in the clout rule language;
+//! argument parsing, exit codes and output.
 //!
 //! Exit codes: 0 success; 1 warnings (`check` only); 2 bad input of any
 //! kind (unreadable file, a rule that does not compile, an unknown name, a
@@ -290,7 +292,7 @@ impl Outcome {
 }
 
 /// Parses the arguments, runs the command and returns its exit code.
-pub fn main() -> ExitCode {
+fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {

@@ -17,9 +17,9 @@ use clout_dsl::diagnostic::closest;
 use clout_dsl::{CompiledRule, RuleFile};
 use serde::Serialize;
 
-use super::input::Input;
-use super::text::{self, Align, Table};
-use super::{DecideArgs, DecideFormat, Failure, Outcome, Rest};
+use crate::input::Input;
+use crate::text::{self, Align, Table};
+use crate::{DecideArgs, DecideFormat, Failure, Outcome, Rest};
 
 /// Ballots hold up to 65,536 members, the language's limit.
 type Votes = Ballot<1024>;
@@ -314,6 +314,6 @@ fn text_decision(
         file.describe_members(flips).join(", ")
     };
     let _ = writeln!(out, "critical ({who}): {listed}");
-    let _ = writeln!(out, "\n{}", super::report::CAUTION);
+    let _ = writeln!(out, "\n{}", crate::report::CAUTION);
     out
 }

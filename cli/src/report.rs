@@ -14,10 +14,10 @@ use clout_dsl::exact::{self, MemberPower, Power};
 use clout_dsl::{AttributeKind, CompiledRule};
 use serde::Serialize;
 
-use super::input::Input;
-use super::progress::with_progress;
-use super::text::{self, Align, Table};
-use super::{Failure, Format, Outcome, ReportArgs};
+use crate::input::Input;
+use crate::progress::with_progress;
+use crate::text::{self, Align, Table};
+use crate::{Failure, Format, Outcome, ReportArgs};
 
 /// The model every figure assumes, in one line.
 pub const MODEL: &str = "Model: each member votes yes or no independently with equal chance; \
@@ -52,7 +52,7 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
             );
             if over && !args.exact && args.engine.engine().is_none() {
                 let why = err.map(reason).unwrap_or_default();
-                let out = super::estimate::run(&input, rule, args, &why)?;
+                let out = crate::estimate::run(&input, rule, args, &why)?;
                 return Ok(with_explanation(out, explained, args.format));
             }
             return Err(failure);
