@@ -9,7 +9,6 @@
 
 mod check;
 mod decide;
-mod estimate;
 mod image;
 mod input;
 mod progress;
@@ -271,6 +270,12 @@ impl Failure {
     /// Bad input (exit 2) whose message is already rendered.
     fn rendered(message: String) -> Self {
         Failure { message, code: 2 }
+    }
+}
+
+impl From<clout::Failure> for Failure {
+    fn from(f: clout::Failure) -> Self {
+        Failure::input(f.to_string())
     }
 }
 
