@@ -204,6 +204,11 @@ where
 {
     let cores = crate::threads::available();
     let threads = if s.threads == 0 { cores } else { s.threads }.clamp(1, count as usize);
+    // One worker runs here: no thread to spawn, which WebAssembly without
+    // threads (where `available()` is 1) could not do anyway.
+    if threads == 1 {
+        return run_in_turn(s, first, count, batch, hits);
+    }
     let totals: Vec<Vec<u64>> = std::thread::scope(|scope| {
         let handles: Vec<_> = (0..threads)
             .map(|t| {
@@ -236,6 +241,14 @@ where
 fn run_round<F>(_: usize, s: &Sampling, first: u64, count: u64, batch: &F, hits: &mut [u64])
 where
     F: Fn(&mut Rng, &mut [u64]) + Sync,
+{
+    run_in_turn(s, first, count, batch, hits)
+}
+
+/// The batches one after the other on this thread.
+fn run_in_turn<F>(s: &Sampling, first: u64, count: u64, batch: &F, hits: &mut [u64])
+where
+    F: Fn(&mut Rng, &mut [u64]),
 {
     for k in 0..count {
         let mut rng = Rng::new(s.seed, first + k);

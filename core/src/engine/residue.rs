@@ -345,6 +345,10 @@ fn reconstruct_exact<C: Counter>(residues: &[u64], primes: &[u64]) -> Result<C, 
 #[cfg(feature = "std")]
 fn run_passes(shape: &Shape<'_>, primes: &[u64]) -> Vec<Pass> {
     let threads = crate::threads::available().min(primes.len()).max(1);
+    // One worker runs here (WebAssembly without threads cannot spawn one).
+    if threads == 1 {
+        return primes.iter().map(|&p| pass(shape, p as u32)).collect();
+    }
     let mut out: Vec<Option<Pass>> = (0..primes.len()).map(|_| None).collect();
     std::thread::scope(|scope| {
         let chunks: Vec<_> = out

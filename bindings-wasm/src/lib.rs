@@ -1,0 +1,183 @@
+//! # clout-wasm
+//!
+//! The clout library for JavaScript and TypeScript, in a browser or Node,
+//! with no server: `parse(text)` compiles a rule file and returns a
+//! [`RuleFile`] whose methods give the power report, the outcome of a vote,
+//! the drafting answers and the rule's binary image.
+//!
+//! Results are plain JavaScript objects with exactly the keys and values of
+//! the command line's JSON (`parse(text).report()` deep-equals `clout report
+//! --format json`): the library serializes them with serde and JavaScript's
+//! `JSON.parse` reads them, so exact counts stay decimal strings and indices
+//! are the same doubles. Errors are thrown as `Error` objects named
+//! `CloutError` with `kind`, `message`, `hint`, `line`, `column` (1-based;
+//! null when the error is not about the text), `errors` (every error of the
+//! text) and `rendered` (the command line's text with carets).
+//!
+//! This file only moves values across the boundary; the calls themselves
+//! are in [`api`] and [`options`], which the host build tests.
+
+pub mod api;
+pub mod options;
+
+use serde::Serialize;
+use serde_json::Value;
+use wasm_bindgen::prelude::*;
+
+use api::{Loaded, Thrown};
+
+#[wasm_bindgen(typescript_custom_section)]
+const TYPES: &'static str = include_str!("types.d.ts");
+
+/// The fictional example rule files shipped with the package, the demo
+/// first: `[{ name, text }]`.
+#[wasm_bindgen(unchecked_return_type = "{ name: string; text: string }[]")]
+pub fn examples() -> Result<JsValue, JsValue> {
+    let list: Vec<Value> = api::EXAMPLES
+        .iter()
+        .map(|(name, text)| serde_json::json!({ "name": name, "text": text }))
+        .collect();
+    to_js(&list)
+}
+
+/// A compiled rule file.
+#[wasm_bindgen]
+pub struct RuleFile {
+    inner: Loaded,
+}
+
+/// Compiles a rule file (or `[q; w1, ..., wn]`); throws a `CloutError` with
+/// every error's line and column when it does not compile.
+#[wasm_bindgen(unchecked_return_type = "RuleFile")]
+pub fn parse(#[wasm_bindgen(unchecked_param_type = "string")] text: JsValue) -> Result<RuleFile, JsValue> {
+    let Some(text) = text.as_string() else {
+        return Err(throw(clout::Failure::input("parse: the rule text must be a string").into()));
+    };
+    api::parse(&text).map(|inner| RuleFile { inner }).map_err(throw)
+}
+
+#[wasm_bindgen]
+impl RuleFile {
+    /// The file's title, if it has one.
+    #[wasm_bindgen(getter)]
+    pub fn title(&self) -> Option<String> {
+        self.inner.file.title.clone()
+    }
+
+    /// The rule text as given to `parse`.
+    #[wasm_bindgen(getter)]
+    pub fn source(&self) -> String {
+        self.inner.source.clone()
+    }
+
+    /// Names of the rules, in order (the first is the default).
+    #[wasm_bindgen(getter)]
+    pub fn rules(&self) -> Vec<String> {
+        self.inner.file.rules.iter().map(|r| r.name.clone()).collect()
+    }
+
+    /// Names of the members, in declaration order.
+    #[wasm_bindgen(getter)]
+    pub fn members(&self) -> Vec<String> {
+        self.inner.file.members.iter().map(|m| m.name.clone()).collect()
+    }
+
+    /// Title, attributes, members, groups, blocs and rules with their lines.
+    #[wasm_bindgen(unchecked_return_type = "Outline")]
+    pub fn outline(&self) -> Result<JsValue, JsValue> {
+        to_js(&self.inner.outline())
+    }
+
+    /// How `report(options)` will compute: exact with an engine and its
+    /// estimated steps, or approximate and why. Cheap; for progress lines.
+    #[wasm_bindgen(unchecked_return_type = "Plan")]
+    pub fn plan(
+        &self,
+        #[wasm_bindgen(unchecked_param_type = "ReportOptions")] options: JsValue,
+    ) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.plan(options).map_err(throw)?)
+    }
+
+    /// The power report, as `clout report --format json` gives it.
+    #[wasm_bindgen(unchecked_return_type = "Report")]
+    pub fn report(
+        &self,
+        #[wasm_bindgen(unchecked_param_type = "ReportOptions")] options: JsValue,
+    ) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.report(options).map_err(throw)?)
+    }
+
+    /// The outcome of one vote, as `clout decide --format json` gives it.
+    #[wasm_bindgen(unchecked_return_type = "Decision")]
+    pub fn decide(&self, #[wasm_bindgen(unchecked_param_type = "Ballot")] ballot: JsValue) -> Result<JsValue, JsValue> {
+        let ballot = from_js(ballot)?;
+        to_js(&self.inner.decide(ballot).map_err(throw)?)
+    }
+
+    /// The rule's binary image for devices and the C ABI (`clout compile`).
+    pub fn image(
+        &self,
+        #[wasm_bindgen(unchecked_param_type = "RuleChoice")] options: JsValue,
+    ) -> Result<Vec<u8>, JsValue> {
+        let options = from_js(options)?;
+        self.inner.image(options).map_err(throw)
+    }
+
+    /// Rows of interchangeable members, whose figures are equal.
+    #[wasm_bindgen(unchecked_return_type = "InterchangeableRow[]")]
+    pub fn interchangeable(
+        &self,
+        #[wasm_bindgen(unchecked_param_type = "RuleChoice")] options: JsValue,
+    ) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.interchangeable(options).map_err(throw)?)
+    }
+
+    /// Each member's share of every weight the rule counts.
+    #[wasm_bindgen(js_name = weightShares, unchecked_return_type = "WeightShares[]")]
+    pub fn weight_shares(
+        &self,
+        #[wasm_bindgen(unchecked_param_type = "RuleChoice")] options: JsValue,
+    ) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.weight_shares(options).map_err(throw)?)
+    }
+}
+
+/// A JavaScript options object as JSON (undefined and null are no options).
+fn from_js(value: JsValue) -> Result<Value, JsValue> {
+    if value.is_undefined() || value.is_null() {
+        return Ok(Value::Null);
+    }
+    let refused = || {
+        throw(
+            clout::Failure::input("options must be plain data (objects, arrays, strings, numbers, booleans)")
+                .with_hint("BigInt values and objects that refer to themselves cannot be passed")
+                .into(),
+        )
+    };
+    let text = js_sys::JSON::stringify(&value).map_err(|_| refused())?;
+    text.as_string()
+        .and_then(|t| serde_json::from_str(&t).ok())
+        .ok_or_else(refused)
+}
+
+/// A result as a plain JavaScript object, through JSON so that keys and
+/// values are exactly the command line's.
+fn to_js(value: &impl Serialize) -> Result<JsValue, JsValue> {
+    let text = serde_json::to_string(value).map_err(|e| JsValue::from_str(&e.to_string()))?;
+    js_sys::JSON::parse(&text)
+}
+
+/// A `CloutError`: an `Error` with the fields of [`Thrown`].
+fn throw(t: Thrown) -> JsValue {
+    let error = js_sys::Error::new(&t.message);
+    error.set_name("CloutError");
+    // Every field of Thrown (message included) becomes an own property.
+    if let Ok(fields) = to_js(&t).and_then(|v| v.dyn_into::<js_sys::Object>()) {
+        js_sys::Object::assign(&error, &fields);
+    }
+    error.into()
+}

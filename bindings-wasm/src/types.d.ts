@@ -1,0 +1,174 @@
+/** Which rule of the file (default: the first). */
+export interface RuleChoice {
+  rule?: string;
+}
+
+/** Options of `report` and `plan` (the command line's `clout report` options). */
+export interface ReportOptions extends RuleChoice {
+  /** Counting engine: "auto" (default), "enumerate", "profile", "dense" or "diagram". */
+  engine?: string;
+  /** Most estimated elementary steps of exact counting (default 5e10). */
+  budget?: number;
+  /** Most bytes an exact engine may use (default 2 GiB). */
+  memory?: number;
+  /** Refuse to approximate. */
+  exact?: boolean;
+  /** Target half-width of approximate figures, 95% confidence (default 0.001). */
+  tolerance?: number;
+  /** Seed of the Monte Carlo sampler (default 1). */
+  seed?: number;
+  /** Also Felsenthal & Machover's ternary Banzhaf measure. */
+  ternary?: boolean;
+  /** Also the probability of passage when each member attends with this chance. */
+  attendance?: number;
+}
+
+/** One vote by names: members, groups, blocs, ranges such as `rep1..rep218`, or `all`. */
+export interface Ballot extends RuleChoice {
+  yes?: string | string[];
+  no?: string | string[];
+  abstain?: string | string[];
+  /** How members in no list vote (default: absent, or no when only `yes` is given). */
+  rest?: "no" | "abstain" | "absent";
+}
+
+/** How `report` will compute. */
+export interface Plan {
+  rule: string;
+  members: number;
+  approximate: boolean;
+  engine: string | null;
+  steps: number | null;
+  reason: string | null;
+}
+
+export interface Fraction {
+  numerator: string;
+  denominator: string;
+}
+
+/** One member's figures; exact counts are decimal strings, null where not computed. */
+export interface MemberReport {
+  name: string;
+  weights: Record<string, string>;
+  swings: string | null;
+  banzhaf: number;
+  penrose: number;
+  shapley_shubik: number;
+  shapley_shubik_exact: Fraction | null;
+  coleman_prevent: number | null;
+  coleman_initiate: number | null;
+  johnston: number | null;
+  deegan_packel: number | null;
+  public_good: number | null;
+  dummy: boolean | null;
+  veto: boolean;
+  dictator: boolean;
+  penrose_half_width: number | null;
+  banzhaf_half_width: number | null;
+  shapley_shubik_half_width: number | null;
+  ternary_banzhaf?: number;
+}
+
+export interface ConditionReport {
+  text: string;
+  attribute: string;
+  quota: string;
+  total: string;
+}
+
+/** The power report: the JSON of `clout report --format json`. */
+export interface Report {
+  rule: string;
+  title: string | null;
+  text: string;
+  approximate: boolean;
+  reason: string | null;
+  members: MemberReport[];
+  winning_coalitions: string | null;
+  passage_probability: number | null;
+  proper: boolean | null;
+  strong: boolean | null;
+  decisive: boolean | null;
+  minimal_winning_coalitions: string | null;
+  minimal_blocking_coalitions: string | null;
+  smallest_winning_coalition: number | null;
+  conditions: ConditionReport[];
+  engine: string;
+  penrose_method: string | null;
+  shapley_shubik_method: string | null;
+  confidence: number | null;
+  attendance?: { chance: number; passage_probability: number };
+  model: string;
+  caution: string;
+}
+
+export interface Tally {
+  text: string;
+  attribute: string;
+  sum: string;
+  no: string;
+  abstain: string;
+  quota: string;
+  needed: string | null;
+  total: string;
+  four_state: boolean;
+  met: boolean;
+}
+
+/** One vote: the JSON of `clout decide --format json`. */
+export interface Decision {
+  rule: string;
+  passed: boolean;
+  yes: string[];
+  no: string[];
+  abstain: string[];
+  absent: string[];
+  critical: string[];
+  conditions: Tally[];
+}
+
+export interface Outline {
+  title: string | null;
+  attributes: string[];
+  members: { name: string; group: string | null; line: number }[];
+  groups: { name: string; members: string[] }[];
+  blocs: { name: string; members: string[] }[];
+  rules: { name: string; text: string; line: number }[];
+}
+
+/** Members with identical weights in every attribute of the rule: equal figures. */
+export interface InterchangeableRow {
+  members: string[];
+  indices: number[];
+  label: string;
+}
+
+/** Each member's share of one weight's total. */
+export interface WeightShares {
+  attribute: string;
+  total: string;
+  shares: number[];
+}
+
+/** One error in the rule text. */
+export interface LocatedError {
+  line: number;
+  column: number;
+  end_line: number;
+  end_column: number;
+  severity: "error" | "warning" | "note";
+  message: string;
+  hint: string | null;
+}
+
+/** What every call throws: an Error named "CloutError" with these fields. */
+export interface CloutError extends Error {
+  kind: "rule-text" | "input" | "limit" | "unsuitable";
+  message: string;
+  hint: string | null;
+  line: number | null;
+  column: number | null;
+  errors: LocatedError[];
+  rendered: string;
+}
