@@ -30,23 +30,26 @@ RUSTC=/usr/bin/rustc RUSTC_BOOTSTRAP=1 RUSTFLAGS="-C linker=wasm-ld" \
   --target wasm32-unknown-unknown -p clout-wasm --target-dir target/wasm
 module=target/wasm/wasm32-unknown-unknown/release/clout_wasm.wasm
 
-echo "== packaging =="
-rm -rf bindings-wasm/pkg-node bindings-wasm/pkg-web web/pkg
-"$bindgen" --target nodejs --out-dir bindings-wasm/pkg-node "$module"
-"$bindgen" --target web --out-dir bindings-wasm/pkg-web "$module"
-
 size() { stat -c %s "$1"; }
 echo "module as linked: $(size "$module") bytes"
-echo "after wasm-bindgen: $(size bindings-wasm/pkg-web/clout_wasm_bg.wasm) bytes"
 if command -v wasm-opt >/dev/null; then
-  for pkg in pkg-node pkg-web; do
-    wasm-opt -Oz --all-features -o bindings-wasm/$pkg/opt.wasm bindings-wasm/$pkg/clout_wasm_bg.wasm
-    mv bindings-wasm/$pkg/opt.wasm bindings-wasm/$pkg/clout_wasm_bg.wasm
-  done
-  echo "after wasm-opt -Oz: $(size bindings-wasm/pkg-web/clout_wasm_bg.wasm) bytes"
+  # Before wasm-bindgen: Debian's binaryen (version 108) does not keep the
+  # externref table that wasm-bindgen adds. Only the features rustc enables
+  # for wasm32-unknown-unknown, which Node 20 and current browsers run.
+  wasm-opt -Oz --enable-bulk-memory --enable-multivalue --enable-mutable-globals \
+    --enable-nontrapping-float-to-int --enable-reference-types --enable-sign-ext \
+    -o target/wasm/clout_wasm.opt.wasm "$module"
+  module=target/wasm/clout_wasm.opt.wasm
+  echo "after wasm-opt -Oz: $(size "$module") bytes"
 else
-  echo "wasm-opt not found (apt-get install -y binaryen): the packages keep the unoptimised module"
+  echo "wasm-opt not found (apt-get install -y binaryen): the packages keep the module as linked"
 fi
+
+echo "== packaging =="
+rm -rf bindings-wasm/pkg-node bindings-wasm/pkg-web web/pkg
+"$bindgen" --target nodejs --out-name clout_wasm --out-dir bindings-wasm/pkg-node "$module"
+"$bindgen" --target web --out-name clout_wasm --out-dir bindings-wasm/pkg-web "$module"
+echo "package module: $(size bindings-wasm/pkg-web/clout_wasm_bg.wasm) bytes"
 
 crate_version=$(sed -n 's/^version = "\(.*\)"$/\1/p' Cargo.toml | head -1)
 cat > bindings-wasm/pkg-node/package.json <<JSON
