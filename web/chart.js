@@ -87,8 +87,9 @@ export function drawPowerChart(container, { rows, shares, report, maxRows = 24 }
   svg.append(el('desc', { id: 'chart-desc' }, desc), patterns());
 
   // Legend.
+  const legendX = [0, 150, 350];
   SERIES.forEach((s, k) => {
-    const lx = labelWidth + k * 150;
+    const lx = labelWidth + legendX[k];
     svg.append(
       el('rect', { x: lx, y: 6, width: 14, height: 12, fill: s.fill, stroke: '#1a1a1a', 'stroke-width': 0.8 }),
       el('text', { x: lx + 19, y: 16 }, s.key === 'weight' ? `share of ${shares.attribute}` : s.label),
