@@ -23,12 +23,12 @@ if ! "$bindgen" --version 2>/dev/null | grep -qx "wasm-bindgen $version"; then
   cargo install wasm-bindgen-cli --version "$version" --root target/tools
 fi
 
-echo "== building the module (wasm32-unknown-unknown, release) =="
+echo "== building the module (wasm32-unknown-unknown, profile wasm: size, LTO) =="
 # Its own target directory, so the host build is never invalidated.
 RUSTC=/usr/bin/rustc RUSTC_BOOTSTRAP=1 RUSTFLAGS="-C linker=wasm-ld" \
-  /usr/bin/cargo build --release -Zbuild-std=std,panic_abort \
+  /usr/bin/cargo build --profile wasm -Zbuild-std=std,panic_abort \
   --target wasm32-unknown-unknown -p clout-wasm --target-dir target/wasm
-module=target/wasm/wasm32-unknown-unknown/release/clout_wasm.wasm
+module=target/wasm/wasm32-unknown-unknown/wasm/clout_wasm.wasm
 
 size() { stat -c %s "$1"; }
 echo "module as linked: $(size "$module") bytes"

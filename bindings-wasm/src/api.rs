@@ -79,7 +79,10 @@ impl Thrown {
         let first = errors.first();
         Thrown {
             kind: "rule-text",
-            message: first.map_or_else(|| "the rule text does not compile".to_string(), |e| e.message.clone()),
+            message: first.map_or_else(
+                || "the rule text does not compile".to_string(),
+                |e| e.message.clone(),
+            ),
             hint: first.and_then(|e| e.hint.clone()),
             line: first.map(|e| e.line),
             column: first.map(|e| e.column),
@@ -89,9 +92,9 @@ impl Thrown {
     }
 }
 
-impl From<Failure> for Thrown {
-    fn from(f: Failure) -> Thrown {
-        Thrown {
+impl From<Failure> for Box<Thrown> {
+    fn from(f: Failure) -> Box<Thrown> {
+        Box::new(Thrown {
             kind: match f.kind {
                 FailureKind::Limit => "limit",
                 FailureKind::Unsuitable => "unsuitable",
@@ -103,7 +106,7 @@ impl From<Failure> for Thrown {
             line: None,
             column: None,
             errors: Vec::new(),
-        }
+        })
     }
 }
 
@@ -120,16 +123,22 @@ pub struct Loaded {
 pub const EXAMPLES: [(&str, &str); 8] = [
     ("transit.clout", include_str!("../../examples/transit.clout")),
     ("council.clout", include_str!("../../examples/council.clout")),
-    ("cooperative.clout", include_str!("../../examples/cooperative.clout")),
+    (
+        "cooperative.clout",
+        include_str!("../../examples/cooperative.clout"),
+    ),
     ("compact.clout", include_str!("../../examples/compact.clout")),
-    ("two-chamber.clout", include_str!("../../examples/two-chamber.clout")),
+    (
+        "two-chamber.clout",
+        include_str!("../../examples/two-chamber.clout"),
+    ),
     ("union.clout", include_str!("../../examples/union.clout")),
     ("assembly.clout", include_str!("../../examples/assembly.clout")),
     ("token-dao.clout", include_str!("../../examples/token-dao.clout")),
 ];
 
 /// Compiles a rule file, or every error in it.
-pub fn parse(text: &str) -> Result<Loaded, Thrown> {
+pub fn parse(text: &str) -> Result<Loaded, Box<Thrown>> {
     if text.len() > MAX_SOURCE_LEN {
         return Err(Failure::input(format!(
             "the rule text is {} bytes, over the limit of {MAX_SOURCE_LEN}",
@@ -143,7 +152,7 @@ pub fn parse(text: &str) -> Result<Loaded, Thrown> {
             source: text.to_string(),
             file,
         })
-        .map_err(|d| Thrown::from_diagnostics(&d, text))
+        .map_err(|d| Box::new(Thrown::from_diagnostics(&d, text)))
 }
 
 /// A value with the command line's JSON keys.
@@ -164,7 +173,7 @@ struct Plan<'a> {
 
 impl Loaded {
     /// The rule named `name`, or the first; an unknown name names the closest.
-    pub fn rule(&self, name: Option<&str>) -> Result<&CompiledRule, Thrown> {
+    pub fn rule(&self, name: Option<&str>) -> Result<&CompiledRule, Box<Thrown>> {
         if let Some(r) = self.file.rule(name) {
             return Ok(r);
         }
@@ -174,7 +183,9 @@ impl Loaded {
             Some(c) => format!("did you mean `{c}`?"),
             None => format!("the rules are: {}", names.collect::<Vec<_>>().join(", ")),
         };
-        Err(Failure::input(format!("no rule named `{wanted}`")).with_hint(hint).into())
+        Err(Failure::input(format!("no rule named `{wanted}`"))
+            .with_hint(hint)
+            .into())
     }
 
     /// The file's outline: title, attributes, members, groups, blocs, rules.
@@ -207,7 +218,7 @@ impl Loaded {
 
     /// How `report` with these options will compute: exact with an engine
     /// and its estimated steps, or approximate and why.
-    pub fn plan(&self, options: Value) -> Result<Value, Thrown> {
+    pub fn plan(&self, options: Value) -> Result<Value, Box<Thrown>> {
         let (name, options) = options::report(options)?;
         let rule = self.rule(name.as_deref())?;
         let method = report::plan(rule, &options)?;
@@ -226,14 +237,14 @@ impl Loaded {
     }
 
     /// The power report: exactly `clout report --format json`.
-    pub fn report(&self, options: Value) -> Result<Report, Thrown> {
+    pub fn report(&self, options: Value) -> Result<Report, Box<Thrown>> {
         let (name, options) = options::report(options)?;
         let rule = self.rule(name.as_deref())?;
         Ok(report::report(&self.file, rule, &options)?)
     }
 
     /// One vote: exactly `clout decide --format json`.
-    pub fn decide(&self, ballot: Value) -> Result<Value, Thrown> {
+    pub fn decide(&self, ballot: Value) -> Result<Value, Box<Thrown>> {
         let (name, ballot) = options::ballot(ballot)?;
         let rule = self.rule(name.as_deref())?;
         let votes = decision::votes(&self.file, &ballot)?;
@@ -241,7 +252,7 @@ impl Loaded {
     }
 
     /// The rule's binary image (what `clout compile` writes).
-    pub fn image(&self, options: Value) -> Result<Vec<u8>, Thrown> {
+    pub fn image(&self, options: Value) -> Result<Vec<u8>, Box<Thrown>> {
         let name = options::rule_only("image", options)?;
         Ok(clout::image::encode(&self.rule(name.as_deref())?.rule))
     }
@@ -249,7 +260,7 @@ impl Loaded {
     /// Rows of interchangeable members (identical weights in every attribute
     /// of the rule, blocs included), whose figures are therefore equal, with
     /// a label such as `delegate1..delegate12`.
-    pub fn interchangeable(&self, options: Value) -> Result<Value, Thrown> {
+    pub fn interchangeable(&self, options: Value) -> Result<Value, Box<Thrown>> {
         let name = options::rule_only("interchangeable", options)?;
         let rule = self.rule(name.as_deref())?;
         let rows: Vec<Value> = report::interchangeable(rule)
@@ -268,7 +279,7 @@ impl Loaded {
     /// Each member's share of every weight the rule counts (declared
     /// attributes and `count`; not blocs): weight / total, as the chart
     /// sets it beside the shares of power.
-    pub fn weight_shares(&self, options: Value) -> Result<Value, Thrown> {
+    pub fn weight_shares(&self, options: Value) -> Result<Value, Box<Thrown>> {
         let name = options::rule_only("weightShares", options)?;
         let rule = self.rule(name.as_deref())?;
         let r = &rule.rule;
@@ -333,7 +344,8 @@ mod tests {
 
     #[test]
     fn errors_carry_line_column_message_and_hint() {
-        let text = "member harbor seats=9\nmember mill seats=7\nbloc founders = harbour, mill\nrule r = founders\n";
+        let text =
+            "member harbor seats=9\nmember mill seats=7\nbloc founders = harbour, mill\nrule r = founders\n";
         let e = parse(text).err().unwrap();
         assert_eq!(e.kind, "rule-text");
         assert_eq!((e.line, e.column), (Some(3), Some(17)));

@@ -49,9 +49,11 @@ pub struct RuleFile {
 /// Compiles a rule file (or `[q; w1, ..., wn]`); throws a `CloutError` with
 /// every error's line and column when it does not compile.
 #[wasm_bindgen(unchecked_return_type = "RuleFile")]
-pub fn parse(#[wasm_bindgen(unchecked_param_type = "string")] text: JsValue) -> Result<RuleFile, JsValue> {
+pub fn parse(text: JsValue) -> Result<RuleFile, JsValue> {
     let Some(text) = text.as_string() else {
-        return Err(throw(clout::Failure::input("parse: the rule text must be a string").into()));
+        return Err(throw(
+            clout::Failure::input("parse: the rule text must be a string").into(),
+        ));
     };
     api::parse(&text).map(|inner| RuleFile { inner }).map_err(throw)
 }
@@ -90,67 +92,53 @@ impl RuleFile {
 
     /// How `report(options)` will compute: exact with an engine and its
     /// estimated steps, or approximate and why. Cheap; for progress lines.
-    #[wasm_bindgen(unchecked_return_type = "Plan")]
-    pub fn plan(
-        &self,
-        #[wasm_bindgen(unchecked_param_type = "ReportOptions")] options: JsValue,
-    ) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(skip_typescript)] // typed in types.d.ts (optional argument)
+    pub fn plan(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
         let options = from_js(options)?;
         to_js(&self.inner.plan(options).map_err(throw)?)
     }
 
     /// The power report, as `clout report --format json` gives it.
-    #[wasm_bindgen(unchecked_return_type = "Report")]
-    pub fn report(
-        &self,
-        #[wasm_bindgen(unchecked_param_type = "ReportOptions")] options: JsValue,
-    ) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(skip_typescript)]
+    pub fn report(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
         let options = from_js(options)?;
         to_js(&self.inner.report(options).map_err(throw)?)
     }
 
     /// The outcome of one vote, as `clout decide --format json` gives it.
-    #[wasm_bindgen(unchecked_return_type = "Decision")]
-    pub fn decide(&self, #[wasm_bindgen(unchecked_param_type = "Ballot")] ballot: JsValue) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(skip_typescript)]
+    pub fn decide(&self, ballot: Option<JsValue>) -> Result<JsValue, JsValue> {
         let ballot = from_js(ballot)?;
         to_js(&self.inner.decide(ballot).map_err(throw)?)
     }
 
     /// The rule's binary image for devices and the C ABI (`clout compile`).
-    pub fn image(
-        &self,
-        #[wasm_bindgen(unchecked_param_type = "RuleChoice")] options: JsValue,
-    ) -> Result<Vec<u8>, JsValue> {
+    #[wasm_bindgen(skip_typescript)]
+    pub fn image(&self, options: Option<JsValue>) -> Result<Vec<u8>, JsValue> {
         let options = from_js(options)?;
         self.inner.image(options).map_err(throw)
     }
 
     /// Rows of interchangeable members, whose figures are equal.
-    #[wasm_bindgen(unchecked_return_type = "InterchangeableRow[]")]
-    pub fn interchangeable(
-        &self,
-        #[wasm_bindgen(unchecked_param_type = "RuleChoice")] options: JsValue,
-    ) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(skip_typescript)]
+    pub fn interchangeable(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
         let options = from_js(options)?;
         to_js(&self.inner.interchangeable(options).map_err(throw)?)
     }
 
     /// Each member's share of every weight the rule counts.
-    #[wasm_bindgen(js_name = weightShares, unchecked_return_type = "WeightShares[]")]
-    pub fn weight_shares(
-        &self,
-        #[wasm_bindgen(unchecked_param_type = "RuleChoice")] options: JsValue,
-    ) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(js_name = weightShares, skip_typescript)]
+    pub fn weight_shares(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
         let options = from_js(options)?;
         to_js(&self.inner.weight_shares(options).map_err(throw)?)
     }
 }
 
 /// A JavaScript options object as JSON (undefined and null are no options).
-fn from_js(value: JsValue) -> Result<Value, JsValue> {
-    if value.is_undefined() || value.is_null() {
+fn from_js(value: Option<JsValue>) -> Result<Value, JsValue> {
+    let Some(value) = value.filter(|v| !v.is_undefined() && !v.is_null()) else {
         return Ok(Value::Null);
-    }
+    };
     let refused = || {
         throw(
             clout::Failure::input("options must be plain data (objects, arrays, strings, numbers, booleans)")
@@ -172,7 +160,7 @@ fn to_js(value: &impl Serialize) -> Result<JsValue, JsValue> {
 }
 
 /// A `CloutError`: an `Error` with the fields of [`Thrown`].
-fn throw(t: Thrown) -> JsValue {
+fn throw(t: Box<Thrown>) -> JsValue {
     let error = js_sys::Error::new(&t.message);
     error.set_name("CloutError");
     // Every field of Thrown (message included) becomes an own property.

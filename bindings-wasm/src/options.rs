@@ -150,17 +150,14 @@ pub fn report(value: Value) -> Result<(Option<String>, Options), Failure> {
 }
 
 fn engine(name: &str) -> Result<Engine, Failure> {
-    Engine::ALL
-        .into_iter()
-        .find(|e| e.name() == name)
-        .ok_or_else(|| {
-            let names: Vec<&str> = Engine::ALL.iter().map(|e| e.name()).collect();
-            let hint = match closest(name, names.iter().copied()) {
-                Some(c) => format!("did you mean `{c}`?"),
-                None => format!("engines: auto, {}", names.join(", ")),
-            };
-            Failure::input(format!("report: unknown engine `{name}`")).with_hint(hint)
-        })
+    Engine::ALL.into_iter().find(|e| e.name() == name).ok_or_else(|| {
+        let names: Vec<&str> = Engine::ALL.iter().map(|e| e.name()).collect();
+        let hint = match closest(name, names.iter().copied()) {
+            Some(c) => format!("did you mean `{c}`?"),
+            None => format!("engines: auto, {}", names.join(", ")),
+        };
+        Failure::input(format!("report: unknown engine `{name}`")).with_hint(hint)
+    })
 }
 
 /// Only a rule name (image, interchangeable members, weight shares).
@@ -184,8 +181,10 @@ pub fn ballot(value: Value) -> Result<(Option<String>, NamedBallot), Failure> {
         Some("abstain") => Some(Rest::Abstain),
         Some("absent") => Some(Rest::Absent),
         Some(other) => {
-            return Err(Failure::input(format!("decide: `rest` must be no, abstain or absent, not `{other}`"))
-                .with_hint("`rest` says how members named in no list vote: no, abstain or absent"))
+            return Err(Failure::input(format!(
+                "decide: `rest` must be no, abstain or absent, not `{other}`"
+            ))
+            .with_hint("`rest` says how members named in no list vote: no, abstain or absent"))
         }
     };
     f.finish()?;
@@ -231,8 +230,10 @@ mod tests {
         let (rule, o) = report(Value::Null).unwrap();
         assert_eq!(rule, None);
         assert_eq!(o, Options::default());
-        let (rule, o) = report(json!({"rule": "charter", "budget": 1000, "seed": 7, "exact": true,
-            "engine": "profile", "attendance": 0.5, "tolerance": 0.01, "memory": 1024, "ternary": true}))
+        let (rule, o) = report(
+            json!({"rule": "charter", "budget": 1000, "seed": 7, "exact": true,
+            "engine": "profile", "attendance": 0.5, "tolerance": 0.01, "memory": 1024, "ternary": true}),
+        )
         .unwrap();
         assert_eq!(rule.as_deref(), Some("charter"));
         assert_eq!(o.budget, 1000);
@@ -258,7 +259,10 @@ mod tests {
         let e = report(json!({"budget": 1e300})).unwrap_err();
         assert!(e.message.contains("`budget`"), "{}", e.message);
         let e = report(json!({"exact": "yes"})).unwrap_err();
-        assert_eq!(e.message, "report: option `exact` must be true or false, not \"yes\"");
+        assert_eq!(
+            e.message,
+            "report: option `exact` must be true or false, not \"yes\""
+        );
         let e = report(json!(["budget"])).unwrap_err();
         assert_eq!(e.message, "report: options must be an object, not an array");
         let e = report(json!({"engine": "dense-ish"})).unwrap_err();

@@ -1,3 +1,22 @@
+/**
+ * The methods of a compiled rule file that take an optional options object
+ * (declared here so that the argument can be left out).
+ */
+export interface RuleFile {
+  /** How `report(options)` will compute: exact with an engine and its estimated steps, or approximate and why. */
+  plan(options?: ReportOptions): Plan;
+  /** The power report, as `clout report --format json` gives it. */
+  report(options?: ReportOptions): Report;
+  /** The outcome of one vote, as `clout decide --format json` gives it. */
+  decide(ballot?: Ballot): Decision;
+  /** The rule's binary image for devices and the C ABI (`clout compile`). */
+  image(options?: RuleChoice): Uint8Array;
+  /** Rows of interchangeable members, whose figures are equal. */
+  interchangeable(options?: RuleChoice): InterchangeableRow[];
+  /** Each member's share of every weight the rule counts. */
+  weightShares(options?: RuleChoice): WeightShares[];
+}
+
 /** Which rule of the file (default: the first). */
 export interface RuleChoice {
   rule?: string;

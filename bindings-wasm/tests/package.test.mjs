@@ -217,3 +217,15 @@ test('interchangeable rows and weight shares describe the rule', () => {
   assert.deepEqual(outline.blocs.find((b) => b.name === 'founders'), { name: 'founders', members: ['harbor', 'mill'] });
   assert.equal(outline.groups[0].members.length, 12);
 });
+
+test("the README's JavaScript example runs", () => {
+  const readme = readFileSync(join(root, 'README.md'), 'utf8');
+  const section = readme.slice(readme.indexOf('<!-- wasm:begin -->'), readme.indexOf('<!-- wasm:end -->'));
+  const code = section.match(/```js\n([\s\S]*?)```/)[1];
+  const load = (path) => (path === './bindings-wasm/pkg-node' ? pkg : assert.fail(`unexpected require ${path}`));
+  // The example's last expressions are its results; run it and check them.
+  const results = new Function('require', `${code}; return { file, report };`)(load);
+  assert.deepEqual(results.file.rules, ['budget']);
+  assert.equal(results.report.members.length, 15);
+  assert.equal(results.report.rule, 'budget');
+});
