@@ -66,7 +66,7 @@ export function drawPowerChart(container, { rows, shares, report, maxRows = 24 }
   const rowHeight = bar * 3 + 14;
   const top = 58;
   const height = top + shown.length * rowHeight + 36;
-  const width = labelWidth + plotWidth + 70;
+  const width = labelWidth + plotWidth + 110;
   const largest = Math.max(0.1, ...shown.flatMap((d) => [d.weight, d.banzhaf, d.shapley]));
   const scaleMax = Math.min(1, Math.ceil(largest * 10) / 10);
   const x = (v) => labelWidth + (v / scaleMax) * plotWidth;
@@ -87,7 +87,7 @@ export function drawPowerChart(container, { rows, shares, report, maxRows = 24 }
   svg.append(el('desc', { id: 'chart-desc' }, desc), patterns());
 
   // Legend.
-  const legendX = [0, 150, 350];
+  const legendX = [0, 140, 330];
   SERIES.forEach((s, k) => {
     const lx = labelWidth + legendX[k];
     svg.append(
