@@ -21,8 +21,8 @@
 
 use clout::decision::{self, NamedBallot, Rest};
 use clout::drafting::{
-    self, CoalitionKind, CoalitionOptions, CompareOptions, FitOptions, Matching, SimplifyOptions, SweepOptions,
-    Targets, Watch,
+    self, CoalitionKind, CoalitionOptions, CompareOptions, FitOptions, Matching, SimplifyOptions,
+    SweepOptions, Targets, Watch,
 };
 use clout::language::diagnostic::Severity;
 use clout::language::syntax::{decode, MAX_SOURCE_LEN};
@@ -74,7 +74,8 @@ fn detached<T: Send>(
 
 /// The library's answer as Python objects: serde's JSON read by `json.loads`.
 fn to_python<'py>(py: Python<'py>, value: &impl serde::Serialize) -> PyResult<Bound<'py, PyAny>> {
-    let text = serde_json::to_string(value).map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
+    let text =
+        serde_json::to_string(value).map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
     py.import("json")?.call_method1("loads", (text,))
 }
 
@@ -250,14 +251,18 @@ fn level(py: Python<'_>, what: &str, value: &Bound<'_, PyAny>) -> PyResult<Level
 }
 
 fn one_of<T: Copy>(py: Python<'_>, what: &str, value: &str, choices: &[(&str, T)]) -> PyResult<T> {
-    choices.iter().find(|(n, _)| *n == value).map(|&(_, v)| v).ok_or_else(|| {
-        let names: Vec<&str> = choices.iter().map(|(n, _)| *n).collect();
-        bad_argument(
-            py,
-            format!("{what}: unknown value `{value}`"),
-            &format!("one of {}", names.join(", ")),
-        )
-    })
+    choices
+        .iter()
+        .find(|(n, _)| *n == value)
+        .map(|&(_, v)| v)
+        .ok_or_else(|| {
+            let names: Vec<&str> = choices.iter().map(|(n, _)| *n).collect();
+            bad_argument(
+                py,
+                format!("{what}: unknown value `{value}`"),
+                &format!("one of {}", names.join(", ")),
+            )
+        })
 }
 
 #[pymethods]
@@ -330,7 +335,8 @@ impl RuleFile {
         let engine = match engine {
             None | Some("auto") => None,
             Some(name) => {
-                let engines: Vec<(&str, clout::Engine)> = clout::Engine::ALL.iter().map(|e| (e.name(), *e)).collect();
+                let engines: Vec<(&str, clout::Engine)> =
+                    clout::Engine::ALL.iter().map(|e| (e.name(), *e)).collect();
                 Some(one_of(py, "engine", name, &engines)?)
             }
         };
@@ -373,10 +379,19 @@ impl RuleFile {
                 py,
                 "rest",
                 v,
-                &[("no", Rest::No), ("abstain", Rest::Abstain), ("absent", Rest::Absent)],
+                &[
+                    ("no", Rest::No),
+                    ("abstain", Rest::Abstain),
+                    ("absent", Rest::Absent),
+                ],
             )?),
         };
-        let ballot = NamedBallot { yes, no, abstain, rest };
+        let ballot = NamedBallot {
+            yes,
+            no,
+            abstain,
+            rest,
+        };
         let answer = detached(py, |_| {
             let votes = decision::votes(&self.file, &ballot)?;
             decision::decide(&self.file, r, &votes)
@@ -388,7 +403,12 @@ impl RuleFile {
     /// weights of least total) or a proof that it is not: the dict
     /// `clout simplify --format json` prints.
     #[pyo3(signature = (rule = None, *, budget = None))]
-    fn simplify<'py>(&self, py: Python<'py>, rule: Option<&str>, budget: Option<u128>) -> PyResult<Bound<'py, PyAny>> {
+    fn simplify<'py>(
+        &self,
+        py: Python<'py>,
+        rule: Option<&str>,
+        budget: Option<u128>,
+    ) -> PyResult<Bound<'py, PyAny>> {
         let r = self.rule(py, rule)?;
         let options = SimplifyOptions {
             budget: budget.unwrap_or(drafting::BUDGET),
@@ -426,7 +446,9 @@ impl RuleFile {
             by,
             budget: budget.unwrap_or(drafting::BUDGET),
         };
-        let answer = detached(py, |w| drafting::compare(&self.file, ra, &other.file, rb, &options, w))?;
+        let answer = detached(py, |w| {
+            drafting::compare(&self.file, ra, &other.file, rb, &options, w)
+        })?;
         to_python(py, &answer)
     }
 
@@ -451,7 +473,8 @@ impl RuleFile {
     ) -> PyResult<Bound<'py, PyAny>> {
         let r = self.rule(py, rule)?;
         let defaults = SweepOptions::default();
-        let pick = |what, v: Option<&Bound<'py, PyAny>>, default| v.map_or(Ok(default), |v| level(py, what, v));
+        let pick =
+            |what, v: Option<&Bound<'py, PyAny>>, default| v.map_or(Ok(default), |v| level(py, what, v));
         let options = SweepOptions {
             attribute,
             condition,
@@ -522,9 +545,12 @@ fn image(rule: &CompiledRule) -> Result<Vec<u8>, Failure> {
     let bytes = clout::image::encode(&rule.rule);
     let needed = clout::image::weights_needed(&bytes).map_err(|e| Failure::input(e.to_string()))?;
     let mut weights = vec![0u64; needed];
-    let loaded = clout::image::load(&bytes, &mut weights).map_err(|e| Failure::input(format!("internal: {e}")))?;
+    let loaded =
+        clout::image::load(&bytes, &mut weights).map_err(|e| Failure::input(format!("internal: {e}")))?;
     if loaded != rule.rule.as_borrowed() {
-        return Err(Failure::input("internal: the image does not load back to the same rule"));
+        return Err(Failure::input(
+            "internal: the image does not load back to the same rule",
+        ));
     }
     Ok(bytes)
 }
