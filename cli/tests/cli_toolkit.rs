@@ -189,24 +189,25 @@ fn compare_matches_members_by_name_or_position() {
     );
 }
 
+/// `[q; 2, 1, 1]` from q = 2 to 4.
+const SWEEP_2_4: &[&str] = &[
+    "sweep",
+    "--game",
+    "[2; 2, 1, 1]",
+    "--from",
+    "2",
+    "--to",
+    "4",
+    "--step",
+    "1",
+];
+
 #[test]
 fn sweep_csv_matches_hand_values() {
     // [q; 2, 1, 1] from q = 2 to 4, by hand: at q = 2 and q = 3 the swings
     // are 3, 1, 1 (Banzhaf 0.6, 0.2, 0.2); at q = 4 (unanimity) 1, 1, 1, and
     // one coalition in 8 passes.
-    let out = ok(&[
-        "sweep",
-        "--game",
-        "[2; 2, 1, 1]",
-        "--from",
-        "2",
-        "--to",
-        "4",
-        "--step",
-        "1",
-        "--format",
-        "csv",
-    ]);
+    let out = ok(&[SWEEP_2_4, &["--format", "csv"]].concat());
     let lines: Vec<&str> = out.lines().collect();
     assert_eq!(lines.len(), 4, "{out}");
     assert!(
@@ -442,19 +443,8 @@ fn drafting_json_holds_the_answers_of_the_text() {
     assert_eq!(o["incomparable"].as_array().unwrap().len(), 1);
 
     // The JSON sweep and the CSV sweep carry the same figures.
-    let args = [
-        "sweep",
-        "--game",
-        "[2; 2, 1, 1]",
-        "--from",
-        "2",
-        "--to",
-        "4",
-        "--step",
-        "1",
-    ];
-    let w = json(&args);
-    let csv = ok(&[&args[..], &["--format", "csv"]].concat());
+    let w = json(SWEEP_2_4);
+    let csv = ok(&[SWEEP_2_4, &["--format", "csv"]].concat());
     let row: Vec<f64> = csv
         .lines()
         .nth(3)
