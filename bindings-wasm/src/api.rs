@@ -3,9 +3,9 @@
 //! line's JSON keys and errors as [`Thrown`]. `lib.rs` only moves these
 //! across the JavaScript boundary, so everything here is tested on the host.
 
+use clout::drafting::{self, Unwatched};
 use clout::report::{self, Method, Report};
 use clout::{decision, Diagnostic, Failure, FailureKind};
-use clout_dsl::diagnostic::closest;
 use clout_dsl::syntax::MAX_SOURCE_LEN;
 use clout_dsl::{AttributeKind, CompiledRule, RuleFile};
 use serde::Serialize;
@@ -174,18 +174,7 @@ struct Plan<'a> {
 impl Loaded {
     /// The rule named `name`, or the first; an unknown name names the closest.
     pub fn rule(&self, name: Option<&str>) -> Result<&CompiledRule, Box<Thrown>> {
-        if let Some(r) = self.file.rule(name) {
-            return Ok(r);
-        }
-        let wanted = name.unwrap_or_default();
-        let names = self.file.rules.iter().map(|r| r.name.as_str());
-        let hint = match closest(wanted, names.clone()) {
-            Some(c) => format!("did you mean `{c}`?"),
-            None => format!("the rules are: {}", names.collect::<Vec<_>>().join(", ")),
-        };
-        Err(Failure::input(format!("no rule named `{wanted}`"))
-            .with_hint(hint)
-            .into())
+        Ok(drafting::rule(&self.file, name)?)
     }
 
     /// The file's outline: title, attributes, members, groups, blocs, rules.
@@ -257,6 +246,65 @@ impl Loaded {
         Ok(clout::image::encode(&self.rule(name.as_deref())?.rule))
     }
 
+    /// Dummies, and whether the rule is one weighted vote or a proof that it
+    /// is not: exactly `clout simplify --format json`.
+    pub fn simplify(&self, options: Value) -> Result<Value, Box<Thrown>> {
+        let (name, options) = options::simplify(options)?;
+        let rule = self.rule(name.as_deref())?;
+        Ok(json(&drafting::simplify(
+            &self.file,
+            rule,
+            &options,
+            &mut Unwatched,
+        )?))
+    }
+
+    /// Whether this file's rule and `other`'s pass the same coalitions:
+    /// exactly `clout compare A B --format json`.
+    pub fn compare(&self, other: &Loaded, options: Value) -> Result<Value, Box<Thrown>> {
+        let (name, other_name, options) = options::compare(options)?;
+        let (a, b) = (self.rule(name.as_deref())?, other.rule(other_name.as_deref())?);
+        Ok(json(&drafting::compare(
+            &self.file,
+            a,
+            &other.file,
+            b,
+            &options,
+            &mut Unwatched,
+        )?))
+    }
+
+    /// Power as a quota moves: exactly `clout sweep --format json`.
+    pub fn sweep(&self, options: Value) -> Result<Value, Box<Thrown>> {
+        let (name, options) = options::sweep(options)?;
+        let rule = self.rule(name.as_deref())?;
+        Ok(json(&drafting::sweep(
+            &self.file,
+            rule,
+            &options,
+            &mut Unwatched,
+        )?))
+    }
+
+    /// Minimal winning or blocking coalitions: exactly `clout coalitions --format json`.
+    pub fn coalitions(&self, options: Value) -> Result<Value, Box<Thrown>> {
+        let (name, options) = options::coalitions(options)?;
+        let rule = self.rule(name.as_deref())?;
+        Ok(json(&drafting::coalitions(
+            &self.file,
+            rule,
+            &options,
+            &mut Unwatched,
+        )?))
+    }
+
+    /// Members by influence and symmetric classes: exactly `clout order --format json`.
+    pub fn order(&self, options: Value) -> Result<Value, Box<Thrown>> {
+        let name = options::rule_only("order", options)?;
+        let rule = self.rule(name.as_deref())?;
+        Ok(json(&drafting::order(&self.file, rule, &mut Unwatched)?))
+    }
+
     /// Rows of interchangeable members (identical weights in every attribute
     /// of the rule, blocs included), whose figures are therefore equal, with
     /// a label such as `delegate1..delegate12`.
@@ -306,6 +354,13 @@ impl Loaded {
             .collect();
         Ok(Value::Array(shares))
     }
+}
+
+/// Integer weights and a quota whose Banzhaf index is closest to target
+/// shares: exactly `clout fit --format json`.
+pub fn fit(options: Value) -> Result<Value, Box<Thrown>> {
+    let (targets, options) = options::fit(options)?;
+    Ok(json(&drafting::fit(&targets, &options, &mut Unwatched)?))
 }
 
 #[cfg(test)]

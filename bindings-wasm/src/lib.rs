@@ -40,6 +40,16 @@ pub fn examples() -> Result<JsValue, JsValue> {
     to_js(&list)
 }
 
+/// Integer weights and a quota whose normalized Banzhaf index is closest
+/// to target shares of power, as `clout fit --format json` gives them.
+#[wasm_bindgen(unchecked_return_type = "Fit")]
+pub fn fit(
+    #[wasm_bindgen(unchecked_param_type = "FitOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let options = from_js(Some(options))?;
+    to_js(&api::fit(options).map_err(throw)?)
+}
+
 /// A compiled rule file.
 #[wasm_bindgen]
 pub struct RuleFile {
@@ -117,6 +127,48 @@ impl RuleFile {
     pub fn image(&self, options: Option<JsValue>) -> Result<Vec<u8>, JsValue> {
         let options = from_js(options)?;
         self.inner.image(options).map_err(throw)
+    }
+
+    /// Dummies, and whether the rule is one weighted vote (with integer
+    /// weights of least total) or a proof that it is not, as `clout simplify
+    /// --format json` gives it.
+    #[wasm_bindgen(skip_typescript)]
+    pub fn simplify(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.simplify(options).map_err(throw)?)
+    }
+
+    /// Whether this file's rule and `other`'s pass the same coalitions; if
+    /// not, a smallest coalition where they differ and each member's change
+    /// in power, as `clout compare --format json` gives it.
+    #[wasm_bindgen(skip_typescript)]
+    pub fn compare(&self, other: &RuleFile, options: Option<JsValue>) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.compare(&other.inner, options).map_err(throw)?)
+    }
+
+    /// Both indices and the probability of passage as a quota moves, as
+    /// `clout sweep --format json` gives it.
+    #[wasm_bindgen(skip_typescript)]
+    pub fn sweep(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.sweep(options).map_err(throw)?)
+    }
+
+    /// Minimal winning or minimal blocking coalitions, as `clout
+    /// coalitions --format json` gives them.
+    #[wasm_bindgen(skip_typescript)]
+    pub fn coalitions(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.coalitions(options).map_err(throw)?)
+    }
+
+    /// Members ordered by influence and classes of symmetric members, as
+    /// `clout order --format json` gives them.
+    #[wasm_bindgen(skip_typescript)]
+    pub fn order(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
+        let options = from_js(options)?;
+        to_js(&self.inner.order(options).map_err(throw)?)
     }
 
     /// Rows of interchangeable members, whose figures are equal.

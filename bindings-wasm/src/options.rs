@@ -6,7 +6,12 @@
 //! the readers work on `serde_json` values and are tested on the host.
 
 use clout::decision::{NamedBallot, Rest};
+use clout::drafting::{
+    CoalitionKind, CoalitionOptions, CompareOptions, FitOptions, Matching, SimplifyOptions, SweepOptions,
+    Targets, BUDGET,
+};
 use clout::report::Options;
+use clout::toolkit::sweep::Level;
 use clout::{Engine, Failure};
 use clout_dsl::diagnostic::closest;
 use serde_json::{Map, Value};
@@ -113,6 +118,50 @@ impl Fields {
         }
     }
 
+    /// One of the named `choices`, if given.
+    pub fn choice<T: Copy>(
+        &mut self,
+        key: &'static str,
+        choices: &[(&str, T)],
+    ) -> Result<Option<T>, Failure> {
+        let Some(name) = self.string(key)? else {
+            return Ok(None);
+        };
+        let names: Vec<&str> = choices.iter().map(|(n, _)| *n).collect();
+        choices
+            .iter()
+            .find(|(n, _)| *n == name)
+            .map(|&(_, v)| Some(v))
+            .ok_or_else(|| {
+                let hint = match closest(&name, names.iter().copied()) {
+                    Some(c) => format!("did you mean `{c}`?"),
+                    None => format!("one of {}", names.join(", ")),
+                };
+                Failure::input(format!("{}: unknown {key} `{name}`", self.call)).with_hint(hint)
+            })
+    }
+
+    /// A quota: a whole number, or a share as text such as "62.5%".
+    pub fn level(&mut self, key: &'static str, default: Level) -> Result<Level, Failure> {
+        let hint = "give a whole-number quota such as 58 or a share as text such as \"50%\"";
+        match self.take(key) {
+            None => Ok(default),
+            Some(Value::String(text)) => Level::parse(&text)
+                .map_err(|e| Failure::input(format!("{}: {key}: {e}", self.call)).with_hint(hint)),
+            Some(v) => match v.as_u64() {
+                Some(q) => Ok(Level::Amount(q)),
+                None => Err(self
+                    .wrong(key, "a whole-number quota or a share such as \"50%\"", &v)
+                    .with_hint(hint)),
+            },
+        }
+    }
+
+    /// The work budget of each exact analysis (default: the command line's).
+    pub fn budget(&mut self) -> Result<u128, Failure> {
+        Ok(self.whole("budget")?.map_or(BUDGET, u128::from))
+    }
+
     /// Refuses keys nobody took, naming the closest known one.
     pub fn finish(self) -> Result<(), Failure> {
         let Some(key) = self.map.keys().next() else {
@@ -131,13 +180,13 @@ pub fn report(value: Value) -> Result<(Option<String>, Options), Failure> {
     let mut f = Fields::of("report", value)?;
     let rule = f.string("rule")?;
     let defaults = Options::default();
-    let engine = match f.string("engine")?.as_deref() {
-        None | Some("auto") => None,
-        Some(name) => Some(engine(name)?),
-    };
+    let engines: Vec<(&str, Option<Engine>)> = std::iter::once(("auto", None))
+        .chain(Engine::ALL.iter().map(|e| (e.name(), Some(*e))))
+        .collect();
+    let engine = f.choice("engine", &engines)?.flatten();
     let options = Options {
         engine,
-        budget: f.whole("budget")?.map_or(defaults.budget, u128::from),
+        budget: f.budget()?,
         memory: f.whole("memory")?.unwrap_or(defaults.memory),
         exact: f.boolean("exact")?.unwrap_or(defaults.exact),
         tolerance: f.number("tolerance")?.unwrap_or(defaults.tolerance),
@@ -147,17 +196,6 @@ pub fn report(value: Value) -> Result<(Option<String>, Options), Failure> {
     };
     f.finish()?;
     Ok((rule, options))
-}
-
-fn engine(name: &str) -> Result<Engine, Failure> {
-    Engine::ALL.into_iter().find(|e| e.name() == name).ok_or_else(|| {
-        let names: Vec<&str> = Engine::ALL.iter().map(|e| e.name()).collect();
-        let hint = match closest(name, names.iter().copied()) {
-            Some(c) => format!("did you mean `{c}`?"),
-            None => format!("engines: auto, {}", names.join(", ")),
-        };
-        Failure::input(format!("report: unknown engine `{name}`")).with_hint(hint)
-    })
 }
 
 /// Only a rule name (image, interchangeable members, weight shares).
@@ -175,18 +213,14 @@ pub fn ballot(value: Value) -> Result<(Option<String>, NamedBallot), Failure> {
     let yes = f.names("yes")?;
     let no = f.names("no")?;
     let abstain = f.names("abstain")?;
-    let rest = match f.string("rest")?.as_deref() {
-        None => None,
-        Some("no") => Some(Rest::No),
-        Some("abstain") => Some(Rest::Abstain),
-        Some("absent") => Some(Rest::Absent),
-        Some(other) => {
-            return Err(Failure::input(format!(
-                "decide: `rest` must be no, abstain or absent, not `{other}`"
-            ))
-            .with_hint("`rest` says how members named in no list vote: no, abstain or absent"))
-        }
-    };
+    let rest = f.choice(
+        "rest",
+        &[
+            ("no", Rest::No),
+            ("abstain", Rest::Abstain),
+            ("absent", Rest::Absent),
+        ],
+    )?;
     f.finish()?;
     Ok((
         rule,
@@ -197,6 +231,108 @@ pub fn ballot(value: Value) -> Result<(Option<String>, NamedBallot), Failure> {
             rest,
         },
     ))
+}
+
+/// `simplify({ rule, budget })`.
+pub fn simplify(value: Value) -> Result<(Option<String>, SimplifyOptions), Failure> {
+    let mut f = Fields::of("simplify", value)?;
+    let rule = f.string("rule")?;
+    let options = SimplifyOptions { budget: f.budget()? };
+    f.finish()?;
+    Ok((rule, options))
+}
+
+/// `compare(other, { rule, other_rule, by, budget })`.
+pub fn compare(value: Value) -> Result<(Option<String>, Option<String>, CompareOptions), Failure> {
+    let mut f = Fields::of("compare", value)?;
+    let rule = f.string("rule")?;
+    let other_rule = f.string("other_rule")?;
+    let options = CompareOptions {
+        by: f.choice(
+            "by",
+            &[("name", Matching::Name), ("position", Matching::Position)],
+        )?,
+        budget: f.budget()?,
+    };
+    f.finish()?;
+    Ok((rule, other_rule, options))
+}
+
+/// `sweep({ rule, attribute, condition, start, stop, step, budget })`.
+pub fn sweep(value: Value) -> Result<(Option<String>, SweepOptions), Failure> {
+    let mut f = Fields::of("sweep", value)?;
+    let rule = f.string("rule")?;
+    let defaults = SweepOptions::default();
+    let options = SweepOptions {
+        attribute: f.string("attribute")?,
+        condition: f
+            .whole("condition")?
+            .map(|c| usize::try_from(c).unwrap_or(usize::MAX)),
+        from: f.level("start", defaults.from)?,
+        to: f.level("stop", defaults.to)?,
+        step: f.level("step", defaults.step)?,
+        budget: f.budget()?,
+    };
+    f.finish()?;
+    Ok((rule, options))
+}
+
+/// `coalitions({ rule, kind, limit })`.
+pub fn coalitions(value: Value) -> Result<(Option<String>, CoalitionOptions), Failure> {
+    let mut f = Fields::of("coalitions", value)?;
+    let rule = f.string("rule")?;
+    let defaults = CoalitionOptions::default();
+    let kinds = [
+        ("minimal_winning", CoalitionKind::MinimalWinning),
+        ("minimal_blocking", CoalitionKind::MinimalBlocking),
+    ];
+    let options = CoalitionOptions {
+        kind: f.choice("kind", &kinds)?.unwrap_or(defaults.kind),
+        limit: f
+            .whole("limit")?
+            .map_or(defaults.limit, |l| usize::try_from(l).unwrap_or(usize::MAX)),
+    };
+    f.finish()?;
+    Ok((rule, options))
+}
+
+/// `fit({ targets: [[name, value], ...], populations, seconds, max_total })`.
+/// Targets are pairs in member order (an object's keys would lose their order).
+pub fn fit(value: Value) -> Result<(Targets, FitOptions), Failure> {
+    let mut f = Fields::of("fit", value)?;
+    let pairs = f.take("targets").unwrap_or(Value::Null);
+    let bad = |got: &Value| {
+        Failure::input(format!(
+            "fit: `targets` must be an array of [name, value] pairs, not {}",
+            shown(got)
+        ))
+        .with_hint("e.g. fit({ targets: [[\"north\", 0.5], [\"south\", 0.3], [\"east\", 0.2]] })")
+    };
+    let Value::Array(items) = &pairs else {
+        return Err(bad(&pairs));
+    };
+    let mut targets = Targets {
+        names: Vec::new(),
+        values: Vec::new(),
+        populations: false,
+    };
+    for item in items {
+        match item.as_array().map(Vec::as_slice) {
+            Some([Value::String(name), value]) if value.as_f64().is_some() => {
+                targets.names.push(name.clone());
+                targets.values.push(value.as_f64().unwrap_or_default());
+            }
+            _ => return Err(bad(item)),
+        }
+    }
+    targets.populations = f.boolean("populations")?.unwrap_or(false);
+    let defaults = FitOptions::default();
+    let options = FitOptions {
+        seconds: f.number("seconds")?.unwrap_or(defaults.seconds),
+        max_total: f.whole("max_total")?.unwrap_or(defaults.max_total),
+    };
+    f.finish()?;
+    Ok((targets, options))
 }
 
 fn kind(v: &Value) -> &'static str {

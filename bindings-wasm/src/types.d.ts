@@ -11,6 +11,16 @@ export interface RuleFile {
   decide(ballot?: Ballot): Decision;
   /** The rule's binary image for devices and the C ABI (`clout compile`). */
   image(options?: RuleChoice): Uint8Array;
+  /** Dummies, and whether the rule is one weighted vote or a proof that it is not (`clout simplify --format json`). */
+  simplify(options?: RuleChoice & { budget?: number }): Simplification;
+  /** Whether this rule and `other`'s pass the same coalitions (`clout compare --format json`). */
+  compare(other: RuleFile, options?: CompareOptions): Comparison;
+  /** Both indices and the probability of passage as a quota moves (`clout sweep --format json`). */
+  sweep(options?: SweepOptions): Sweep;
+  /** Minimal winning or minimal blocking coalitions (`clout coalitions --format json`). */
+  coalitions(options?: CoalitionOptions): Coalitions;
+  /** Members ordered by influence, classes of symmetric members (`clout order --format json`). */
+  order(options?: RuleChoice): Order;
   /** Rows of interchangeable members, whose figures are equal. */
   interchangeable(options?: RuleChoice): InterchangeableRow[];
   /** Each member's share of every weight the rule counts. */
@@ -190,4 +200,128 @@ export interface CloutError extends Error {
   column: number | null;
   errors: LocatedError[];
   rendered: string;
+}
+
+// ---- the drafting answers (the JSON of the drafting commands) ----
+
+export interface CompareOptions extends RuleChoice {
+  /** The rule of the other file (default: its first). */
+  other_rule?: string;
+  /** How members are matched (default: by name when both files name the same members). */
+  by?: "name" | "position";
+  budget?: number;
+}
+
+export interface SweepOptions extends RuleChoice {
+  /** Move every condition on this attribute (default: the rule's only one). */
+  attribute?: string;
+  /** Move only this condition, 1 for the first. */
+  condition?: number;
+  /** A whole-number quota or a share such as "50%" (default "50%"). */
+  start?: number | string;
+  /** Default "100%". */
+  stop?: number | string;
+  /** Default "1%". */
+  step?: number | string;
+  budget?: number;
+}
+
+export interface CoalitionOptions extends RuleChoice {
+  kind?: "minimal_winning" | "minimal_blocking";
+  /** Most patterns and coalitions listed (default 50). */
+  limit?: number;
+}
+
+export interface FitOptions {
+  /** [member name, target] pairs in member order: shares of power, or populations. */
+  targets: [string, number][];
+  /** The targets are populations: aim at power proportional to their square roots. */
+  populations?: boolean;
+  /** Time budget in seconds on the project's machine, as a fixed number of steps (default 10). */
+  seconds?: number;
+  /** Largest total weight tried (default 10000). */
+  max_total?: number;
+}
+
+export interface Members {
+  names: string[];
+  indices: number[];
+}
+
+export interface RuleRef {
+  rule: string;
+  title: string | null;
+  text: string;
+  four_state: boolean;
+}
+
+export interface WeightedVote {
+  notation: string;
+  quota: string;
+  total: string;
+  weights: Record<string, string>;
+}
+
+export interface Simplification {
+  rule: RuleRef;
+  dummies: Members;
+  weighted: boolean;
+  weighted_vote: WeightedVote | null;
+  least_total: "proved" | "among_equal_weights" | "not_proved" | "not_searched" | null;
+  trading_transfer: { winning: Members[]; losing: Members[] } | null;
+  intersection: WeightedVote[] | null;
+  [key: string]: unknown;
+}
+
+export interface Comparison {
+  a: RuleRef;
+  b: RuleRef;
+  matched_by: "name" | "position";
+  verdict: "same" | "different" | "undecided";
+  witness: { coalition: Members; passes: string; smallest: boolean } | null;
+  members: { name: string; banzhaf_a: number; banzhaf_b: number; shapley_shubik_a: number; shapley_shubik_b: number }[] | null;
+  passage_probability_a: number | null;
+  passage_probability_b: number | null;
+  [key: string]: unknown;
+}
+
+export interface Sweep {
+  rule: RuleRef;
+  attribute: string;
+  total: number;
+  conditions: { number: number; text: string }[];
+  points: {
+    quota: number;
+    share: number;
+    passage_probability: number;
+    members: { name: string; banzhaf: number; shapley_shubik: number }[];
+  }[];
+  model: string;
+  caution: string;
+}
+
+export interface Coalitions {
+  rule: RuleRef;
+  kind: "minimal_winning" | "minimal_blocking";
+  count: string;
+  pattern_count: number;
+  patterns: { size: number; count: string; parts: { take: number; of: Members }[] }[];
+  coalitions: Members[];
+  caution: string;
+}
+
+export interface Order {
+  rule: RuleRef;
+  complete: boolean;
+  classes: { members: Members; above: number[] }[];
+  incomparable: { classes: [number, number]; witnesses: [unknown, unknown] }[];
+  caution: string;
+}
+
+export interface Fit {
+  weighted_vote: WeightedVote;
+  members: { name: string; weight: number; target: number; banzhaf: number; deviation: number }[];
+  max_deviation: number;
+  rms_deviation: number;
+  [key: string]: unknown;
 }

@@ -188,7 +188,7 @@ test('bad calls throw a CloutError with a hint, never a crash', () => {
     [() => file.report({ attendance: 2 }), /attendance 2 is not a chance/],
     [() => file.report({ budget: 1, exact: true }), /over the budget/],
     [() => file.decide({ yes: ['p9'] }), /unknown member `p9`/],
-    [() => file.decide({ rest: 'away' }), /`rest` must be no, abstain or absent/],
+    [() => file.decide({ rest: 'away' }), /decide: unknown rest `away`/, 'one of no, abstain, absent'],
   ];
   for (const [call, message, hint] of cases) {
     assert.throws(call, (e) => {
