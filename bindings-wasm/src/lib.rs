@@ -104,22 +104,19 @@ impl RuleFile {
     /// estimated steps, or approximate and why. Cheap; for progress lines.
     #[wasm_bindgen(skip_typescript)] // typed in types.d.ts (optional argument)
     pub fn plan(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.plan(options).map_err(throw)?)
+        relay(options, |o| self.inner.plan(o))
     }
 
     /// The power report, as `clout report --format json` gives it.
     #[wasm_bindgen(skip_typescript)]
     pub fn report(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.report(options).map_err(throw)?)
+        relay(options, |o| self.inner.report(o))
     }
 
     /// The outcome of one vote, as `clout decide --format json` gives it.
     #[wasm_bindgen(skip_typescript)]
     pub fn decide(&self, ballot: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let ballot = from_js(ballot)?;
-        to_js(&self.inner.decide(ballot).map_err(throw)?)
+        relay(ballot, |o| self.inner.decide(o))
     }
 
     /// The rule's binary image for devices and the C ABI (`clout compile`).
@@ -134,8 +131,7 @@ impl RuleFile {
     /// --format json` gives it.
     #[wasm_bindgen(skip_typescript)]
     pub fn simplify(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.simplify(options).map_err(throw)?)
+        relay(options, |o| self.inner.simplify(o))
     }
 
     /// Whether this file's rule and `other`'s pass the same coalitions; if
@@ -143,46 +139,40 @@ impl RuleFile {
     /// in power, as `clout compare --format json` gives it.
     #[wasm_bindgen(skip_typescript)]
     pub fn compare(&self, other: &RuleFile, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.compare(&other.inner, options).map_err(throw)?)
+        relay(options, |o| self.inner.compare(&other.inner, o))
     }
 
     /// Both indices and the probability of passage as a quota moves, as
     /// `clout sweep --format json` gives it.
     #[wasm_bindgen(skip_typescript)]
     pub fn sweep(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.sweep(options).map_err(throw)?)
+        relay(options, |o| self.inner.sweep(o))
     }
 
     /// Minimal winning or minimal blocking coalitions, as `clout
     /// coalitions --format json` gives them.
     #[wasm_bindgen(skip_typescript)]
     pub fn coalitions(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.coalitions(options).map_err(throw)?)
+        relay(options, |o| self.inner.coalitions(o))
     }
 
     /// Members ordered by influence and classes of symmetric members, as
     /// `clout order --format json` gives them.
     #[wasm_bindgen(skip_typescript)]
     pub fn order(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.order(options).map_err(throw)?)
+        relay(options, |o| self.inner.order(o))
     }
 
     /// Rows of interchangeable members, whose figures are equal.
     #[wasm_bindgen(skip_typescript)]
     pub fn interchangeable(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.interchangeable(options).map_err(throw)?)
+        relay(options, |o| self.inner.interchangeable(o))
     }
 
     /// Each member's share of every weight the rule counts.
     #[wasm_bindgen(js_name = weightShares, skip_typescript)]
     pub fn weight_shares(&self, options: Option<JsValue>) -> Result<JsValue, JsValue> {
-        let options = from_js(options)?;
-        to_js(&self.inner.weight_shares(options).map_err(throw)?)
+        relay(options, |o| self.inner.weight_shares(o))
     }
 }
 
@@ -202,6 +192,14 @@ fn from_js(value: Option<JsValue>) -> Result<Value, JsValue> {
     text.as_string()
         .and_then(|t| serde_json::from_str(&t).ok())
         .ok_or_else(refused)
+}
+
+/// Reads the options, runs `call` and returns its answer as a plain object.
+fn relay<T: Serialize>(
+    options: Option<JsValue>,
+    call: impl FnOnce(Value) -> Result<T, Box<Thrown>>,
+) -> Result<JsValue, JsValue> {
+    to_js(&call(from_js(options)?).map_err(throw)?)
 }
 
 /// A result as a plain JavaScript object, through JSON so that keys and
