@@ -201,6 +201,7 @@ const computer = {
     if (data.type === 'error') {
       const e = data.error;
       this.finish(`Not computed: ${e.message}${e.hint ? ` (hint: ${e.hint})` : ''}`);
+      document.querySelector('#power').classList.add('stale');
       return;
     }
     const how = data.report.approximate ? 'estimated' : `exact, ${data.report.engine} engine`;

@@ -205,6 +205,26 @@ test('the demo again, with a ballot, for the README screenshot', async () => {
   assert.ok(readFileSync(join(output, 'workbench.png')).length > 10_000);
 });
 
+test('every control has a label and can be reached by the keyboard', async () => {
+  const unlabelled = await page.$$eval('input, select, textarea, button', (controls) =>
+    controls
+      .filter((c) => !c.hidden && !(c.labels?.length || c.getAttribute('aria-label') || c.textContent.trim()))
+      .map((c) => c.outerHTML.slice(0, 80)),
+  );
+  assert.deepEqual(unlabelled, []);
+  const unreachable = await page.$$eval('input, select, textarea, button', (controls) =>
+    controls.filter((c) => c.tabIndex < 0 && !c.disabled && !c.hidden).map((c) => c.id || c.outerHTML.slice(0, 60)),
+  );
+  assert.deepEqual(unreachable, []);
+  // From a fresh load, Tab reaches the skip link first, then the example picker.
+  await page.reload();
+  await page.waitForSelector('body[data-ready="true"]');
+  await page.keyboard.press('Tab');
+  assert.equal(await page.evaluate(() => document.activeElement.className), 'skip');
+  await page.keyboard.press('Tab');
+  assert.equal(await page.evaluate(() => document.activeElement.id), 'example');
+});
+
 test('the page made no request outside its own folder and raised no error', () => {
   assert.ok(requests.length > 0);
   assert.deepEqual(requests.filter((u) => !u.startsWith(base)), []);
