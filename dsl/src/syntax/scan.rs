@@ -1,0 +1,263 @@
+//! A lexical pass ahead of pest: where each declaration starts, how deeply
+//! it nests, and which names a stretch of text mentions.
+//!
+//! Every declaration starts with a keyword (`title`, `member`, `members`,
+//! `bloc`, `define`, `rule`) and no declaration can hold one (keywords are
+//! not names), so the keywords cut a file into *chunks*, one declaration
+//! each, whatever errors the file holds. Keywords inside comments and
+//! quoted titles, and inside longer words (`rules`, `bloc_2`), are not cuts.
+//!
+//! Nesting (parentheses and `not`) is counted per chunk before pest sees it:
+//! pest recurses once per level, so a chunk nested deeper than
+//! [`MAX_NESTING`] is refused here and never parsed.
+//!
+//! One pass over the bytes: O(source) time, O(chunks) space; no recursion.
+
+use crate::diagnostic::{Diagnostic, Span};
+
+/// Deepest nesting of parentheses and `not` accepted.
+pub const MAX_NESTING: usize = 64;
+
+/// The words that start a declaration, longest first where one is a prefix
+/// of another.
+pub(super) const DECLARATION_KEYWORDS: [&str; 6] = ["title", "members", "member", "bloc", "define", "rule"];
+
+/// One stretch of the source: the text before the first declaration
+/// keyword, or one declaration keyword up to the next.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub(super) struct Chunk {
+    /// First byte: a declaration keyword, or 0 for the text before the first.
+    pub start: usize,
+    /// One past the last byte: the next keyword, or the end of the file.
+    pub end: usize,
+    /// Its keyword, `None` for the text before the first declaration.
+    pub keyword: Option<&'static str>,
+    /// The first place it nests too deeply, if any.
+    pub too_deep: Option<Diagnostic>,
+    /// Whether it holds code on more than one line.
+    pub several_lines: bool,
+}
+
+/// What the scanner is inside of.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Inside {
+    Code,
+    /// A quoted title, which ends at `"` or at the end of the line.
+    Quote,
+    /// A comment, which ends at the end of the line.
+    Comment,
+}
+
+fn is_ident(b: u8) -> bool {
+    b.is_ascii_alphanumeric() || b == b'_'
+}
+
+/// Whether `bytes[i..i + len]` is a whole word (the grammar's identifier
+/// characters are ASCII letters, digits and `_`).
+fn whole_word(bytes: &[u8], i: usize, len: usize) -> bool {
+    let before = i == 0 || !is_ident(bytes[i - 1]);
+    let after = bytes.get(i + len).is_none_or(|&b| !is_ident(b));
+    before && after
+}
+
+/// The declaration keyword starting at `i`, if any.
+fn keyword_at(bytes: &[u8], i: usize) -> Option<&'static str> {
+    DECLARATION_KEYWORDS
+        .into_iter()
+        .find(|k| bytes[i..].starts_with(k.as_bytes()) && whole_word(bytes, i, k.len()))
+}
+
+/// The chunks of `source`, in order, covering it exactly. The first chunk
+/// (keyword `None`) is the text before the first declaration; it may be empty.
+pub(super) fn chunks(source: &str) -> Vec<Chunk> {
+    let bytes = source.as_bytes();
+    let mut out = vec![Chunk {
+        start: 0,
+        end: source.len(),
+        keyword: None,
+        too_deep: None,
+        several_lines: false,
+    }];
+    let mut inside = Inside::Code;
+    let (mut depth, mut negations) = (0usize, 0usize);
+    // Lines of the current chunk that hold code, counted up to 2.
+    let (mut code_lines, mut line_has_code) = (0u8, false);
+    for (i, &b) in bytes.iter().enumerate() {
+        match inside {
+            Inside::Quote if b == b'"' => inside = Inside::Code,
+            Inside::Quote | Inside::Comment if b == b'\n' => inside = Inside::Code,
+            Inside::Quote | Inside::Comment => {}
+            Inside::Code => {
+                if b == b'\n' {
+                    line_has_code = false;
+                    continue;
+                }
+                if b.is_ascii_whitespace() {
+                    continue;
+                }
+                if b == b'#' {
+                    inside = Inside::Comment;
+                    continue;
+                }
+                let word_start = i == 0 || !is_ident(bytes[i - 1]);
+                if word_start {
+                    if let Some(k) = keyword_at(bytes, i) {
+                        if let Some(last) = out.last_mut() {
+                            last.end = i;
+                            last.several_lines = code_lines > 1;
+                        }
+                        out.push(Chunk {
+                            start: i,
+                            end: source.len(),
+                            keyword: Some(k),
+                            too_deep: None,
+                            several_lines: false,
+                        });
+                        (depth, negations, code_lines, line_has_code) = (0, 0, 1, true);
+                        continue;
+                    }
+                }
+                if !line_has_code {
+                    line_has_code = true;
+                    code_lines = code_lines.saturating_add(1);
+                }
+                let Some(chunk) = out.last_mut() else { continue };
+                match b {
+                    b'"' => inside = Inside::Quote,
+                    b'(' => {
+                        depth += 1;
+                        if depth > MAX_NESTING && chunk.too_deep.is_none() {
+                            chunk.too_deep = Some(
+                                Diagnostic::error(
+                                    Span::new(i, i + 1),
+                                    format!("parentheses nested deeper than {MAX_NESTING}"),
+                                )
+                                .with_hint("split the condition into named parts with `define`"),
+                            );
+                        }
+                    }
+                    b')' => depth = depth.saturating_sub(1),
+                    b'n' | b'N'
+                        if word_start
+                            && bytes[i..]
+                                .get(..3)
+                                .is_some_and(|w| w.eq_ignore_ascii_case(b"not"))
+                            && whole_word(bytes, i, 3) =>
+                    {
+                        negations += 1;
+                        if negations > MAX_NESTING && chunk.too_deep.is_none() {
+                            chunk.too_deep = Some(
+                                Diagnostic::error(
+                                    Span::new(i, i + 3),
+                                    format!("more than {MAX_NESTING} uses of `not`"),
+                                )
+                                .with_hint("rules are monotone: `not` is refused anyway"),
+                            );
+                        }
+                    }
+                    _ => {}
+                }
+            }
+        }
+    }
+    if let Some(last) = out.last_mut() {
+        last.several_lines = code_lines > 1;
+    }
+    out
+}
+
+/// The names written in `text` outside comments and quoted titles: every
+/// word that starts with a letter or `_`.
+pub(super) fn names_in(text: &str) -> Vec<&str> {
+    let bytes = text.as_bytes();
+    let mut out = Vec::new();
+    let mut inside = Inside::Code;
+    let mut i = 0;
+    while i < bytes.len() {
+        let b = bytes[i];
+        match inside {
+            Inside::Quote if b == b'"' => inside = Inside::Code,
+            Inside::Quote | Inside::Comment if b == b'\n' => inside = Inside::Code,
+            Inside::Quote | Inside::Comment => {}
+            Inside::Code if b == b'"' => inside = Inside::Quote,
+            Inside::Code if b == b'#' => inside = Inside::Comment,
+            Inside::Code if is_ident(b) => {
+                let end = bytes[i..]
+                    .iter()
+                    .position(|&c| !is_ident(c))
+                    .map_or(bytes.len(), |n| i + n);
+                if !b.is_ascii_digit() {
+                    out.push(&text[i..end]);
+                }
+                i = end;
+                continue;
+            }
+            Inside::Code => {}
+        }
+        i += 1;
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn cuts(source: &str) -> Vec<(usize, Option<&'static str>)> {
+        chunks(source).iter().map(|c| (c.start, c.keyword)).collect()
+    }
+
+    #[test]
+    fn keywords_cut_the_file_into_declarations() {
+        let src = "# head\nmember a seats=1\nmembers d x3\nrule r = a\n  and d";
+        assert_eq!(
+            cuts(src),
+            [
+                (0, None),
+                (7, Some("member")),
+                (24, Some("members")),
+                (37, Some("rule"))
+            ]
+        );
+        let c = chunks(src);
+        assert_eq!((c[0].end, c[1].end, c[3].end), (7, 24, src.len()));
+        assert!(c[3].several_lines && !c[1].several_lines);
+        assert!(!c[0].several_lines, "a comment is not code");
+    }
+
+    #[test]
+    fn keywords_in_titles_comments_and_longer_words_do_not_cut() {
+        let src = "title \"the rule # book\" # member\nrule rules = bloc_2 and xrule and rule_\n";
+        assert_eq!(cuts(src), [(0, None), (0, Some("title")), (33, Some("rule"))]);
+        // An unterminated title ends at the end of its line.
+        assert_eq!(cuts("title \"x\nrule r = a").len(), 3);
+    }
+
+    #[test]
+    fn nesting_is_counted_per_declaration() {
+        let deep = format!("rule r = {}a >= 1", "(".repeat(MAX_NESTING + 1));
+        let c = chunks(&deep);
+        let e = c[1].too_deep.as_ref().unwrap();
+        assert_eq!(e.message, "parentheses nested deeper than 64");
+        assert_eq!(e.span.start, 9 + MAX_NESTING);
+        // Unclosed parentheses do not carry over to the next declaration.
+        let open = format!("rule r = {}\n", "(".repeat(40)).repeat(3);
+        assert!(chunks(&open).iter().all(|c| c.too_deep.is_none()));
+        let nots = format!("rule r = {}a", "NOT ".repeat(MAX_NESTING + 1));
+        assert_eq!(
+            chunks(&nots)[1].too_deep.as_ref().unwrap().message,
+            "more than 64 uses of `not`"
+        );
+        assert!(chunks("rule r = nothing and knot")
+            .iter()
+            .all(|c| c.too_deep.is_none()));
+    }
+
+    #[test]
+    fn names_skip_numbers_comments_and_titles() {
+        assert_eq!(
+            names_in("member a2 seats=1_0 \"title x\" # rest\nb"),
+            ["member", "a2", "seats", "b"]
+        );
+    }
+}
