@@ -205,33 +205,18 @@ fn count_copies(
 
 #[cfg(test)]
 mod tests {
-    use super::super::names::declare;
+    use super::super::testing::run;
     use super::*;
-    use crate::syntax::{parse_recovering, File};
 
-    /// Passes 1 and 2 on `source`: each bloc's members, and the errors as `line:col message`.
+    /// Passes 1 and 2 on `source`: each bloc's members, and the errors.
     fn blocs_of(source: &str) -> (Vec<(String, Vec<usize>)>, Vec<String>) {
-        let mut errors = CappedErrors::new();
-        let parsed = parse_recovering(source, &mut errors);
-        let Some(File::Declarations(decls)) = parsed.file else {
-            panic!("not declarations")
-        };
-        let mut d = declare(source, &decls, parsed.set_aside, &mut errors);
-        resolve(&mut d, &mut errors);
-        let blocs = d
-            .blocs
-            .iter()
-            .map(|b| (b.name.clone(), b.members.clone()))
-            .collect();
-        let shown = errors
-            .into_vec()
-            .iter()
-            .map(|e| {
-                let (line, col) = e.line_col(source);
-                format!("{line}:{col} {}", e.message)
-            })
-            .collect();
-        (blocs, shown)
+        run(source, |d, errors| {
+            resolve(d, errors);
+            d.blocs
+                .iter()
+                .map(|b| (b.name.clone(), b.members.clone()))
+                .collect()
+        })
     }
 
     #[test]

@@ -273,35 +273,8 @@ impl Lowering {
                 coefficients,
                 bound,
                 span,
-            } => {
-                let attribute = self.attribute(*key);
-                self.atoms.push(Atom { attribute, quota: 0 });
-                self.linear.push(Some(Linear {
-                    attribute,
-                    yes: coefficients[0],
-                    no: coefficients[1],
-                    abstain: coefficients[2],
-                    bound: *bound,
-                }));
-                self.conditions.push(Condition {
-                    text: one_line(span.text(source)),
-                    span: *span,
-                });
-                self.push(Node::Atom((self.atoms.len() - 1) as u16));
-            }
-            Resolved::Atom { key, quota, span } => {
-                let attribute = self.attribute(*key);
-                self.linear.push(None);
-                self.atoms.push(Atom {
-                    attribute,
-                    quota: *quota,
-                });
-                self.conditions.push(Condition {
-                    text: one_line(span.text(source)),
-                    span: *span,
-                });
-                self.push(Node::Atom((self.atoms.len() - 1) as u16));
-            }
+            } => self.atom(*key, 0, Some((*coefficients, *bound)), *span, source),
+            Resolved::Atom { key, quota, span } => self.atom(*key, *quota, None, *span, source),
             Resolved::All(v) | Resolved::Any(v) => {
                 // More operands than nodes allowed make the rule too big anyway.
                 let k = v.len().min(usize::from(u16::MAX)) as u16;
@@ -311,6 +284,25 @@ impl Lowering {
             }
             Resolved::Ref(k) => steps.push(Step::Definition(*k)),
         }
+    }
+
+    /// A new atom on `key` (with its four-state form, if any) and its node.
+    fn atom(&mut self, key: Key, quota: u64, four_state: Option<([i32; 3], i128)>, span: Span, source: &str) {
+        let attribute = self.attribute(key);
+        self.atoms.push(Atom { attribute, quota });
+        self.linear
+            .push(four_state.map(|([yes, no, abstain], bound)| Linear {
+                attribute,
+                yes,
+                no,
+                abstain,
+                bound,
+            }));
+        self.conditions.push(Condition {
+            text: one_line(span.text(source)),
+            span,
+        });
+        self.push(Node::Atom((self.atoms.len() - 1) as u16));
     }
 
     fn push(&mut self, node: Node) {

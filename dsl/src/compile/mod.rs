@@ -90,3 +90,35 @@ fn too_many_members(span: Span) -> Diagnostic {
         "a rule holds at most {MAX_MEMBERS} members; model a large chamber as one group with `members NAME xK`"
     ))
 }
+
+/// Running the passes in unit tests.
+#[cfg(test)]
+mod testing {
+    use super::names::{self, Declared};
+    use crate::diagnostic::CappedErrors;
+    use crate::syntax::{parse_recovering, File};
+
+    /// Parses `source`, runs pass 1 and then `passes` on what it declared:
+    /// what `passes` returns, and every error as `line:col message`.
+    pub(super) fn run<T>(
+        source: &str,
+        passes: impl FnOnce(&mut Declared<'_>, &mut CappedErrors) -> T,
+    ) -> (T, Vec<String>) {
+        let mut errors = CappedErrors::new();
+        let parsed = parse_recovering(source, &mut errors);
+        let Some(File::Declarations(decls)) = parsed.file else {
+            panic!("not declarations")
+        };
+        let mut d = names::declare(source, &decls, parsed.set_aside, &mut errors);
+        let out = passes(&mut d, &mut errors);
+        let shown = errors
+            .into_vec()
+            .iter()
+            .map(|e| {
+                let (line, col) = e.line_col(source);
+                format!("{line}:{col} {}", e.message)
+            })
+            .collect();
+        (out, shown)
+    }
+}

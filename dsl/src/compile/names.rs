@@ -392,27 +392,13 @@ impl<'a> Declared<'a> {
 
 #[cfg(test)]
 mod tests {
+    use super::super::testing::run;
     use super::*;
     use crate::syntax::{parse_recovering, File};
 
-    /// Runs pass 1 on `source`; the declared members and the rendered errors.
+    /// Runs pass 1 on `source`; the declared members and the errors.
     fn declare_in(source: &str) -> (Vec<String>, Vec<String>) {
-        let mut errors = CappedErrors::new();
-        let parsed = parse_recovering(source, &mut errors);
-        let Some(File::Declarations(decls)) = parsed.file else {
-            panic!("not declarations")
-        };
-        let d = declare(source, &decls, parsed.set_aside, &mut errors);
-        let members = d.members.iter().map(|m| m.name.clone()).collect();
-        let shown = errors
-            .into_vec()
-            .iter()
-            .map(|e| {
-                let (line, col) = e.line_col(source);
-                format!("{line}:{col} {}", e.message)
-            })
-            .collect();
-        (members, shown)
+        run(source, |d, _| d.members.iter().map(|m| m.name.clone()).collect())
     }
 
     #[test]
@@ -469,9 +455,23 @@ mod tests {
     }
 
     #[test]
-    fn words_name_what_a_name_is() {
-        let (_, errors) =
-            declare_in("members g x2\nbloc b = g1\nbloc g = g2\ndefine b = count >= 1\nrule r = b\n");
-        assert_eq!(errors, ["3:6 duplicate name `g`", "4:8 duplicate name `b`"]);
+    fn duplicates_say_what_the_first_one_is() {
+        let source =
+            "members g x2\nbloc b = g1\nbloc g = g2\ndefine b = count >= 1\nrule r = b\nbloc r = g1\n";
+        let errors = crate::compile(source).unwrap_err();
+        let hints: Vec<&str> = errors.iter().map(|e| e.hint.as_deref().unwrap_or("")).collect();
+        assert_eq!(errors.len(), 3);
+        assert!(
+            hints[0].starts_with("`g` is already a group (line 1)"),
+            "{hints:?}"
+        );
+        assert!(
+            hints[1].starts_with("`b` is already a bloc (line 2)"),
+            "{hints:?}"
+        );
+        assert!(
+            hints[2].starts_with("`r` is already a rule (line 5)"),
+            "{hints:?}"
+        );
     }
 }

@@ -450,29 +450,16 @@ impl Resolver<'_, '_> {
 
 #[cfg(test)]
 mod tests {
-    use super::super::{blocs, names};
+    use super::super::blocs;
+    use super::super::testing::run;
     use super::*;
-    use crate::syntax::{parse_recovering, File};
 
-    /// Passes 1 to 3 on `source`: the resolved rules, and the errors as `line:col message`.
+    /// Passes 1 to 3 on `source`: the resolved rules, and the errors.
     fn resolve_in(source: &str) -> (Vec<Option<Resolved>>, Vec<String>) {
-        let mut errors = CappedErrors::new();
-        let parsed = parse_recovering(source, &mut errors);
-        let Some(File::Declarations(decls)) = parsed.file else {
-            panic!("not declarations")
-        };
-        let mut d = names::declare(source, &decls, parsed.set_aside, &mut errors);
-        blocs::resolve(&mut d, &mut errors);
-        let resolved = resolve_all(&d, &mut errors);
-        let shown = errors
-            .into_vec()
-            .iter()
-            .map(|e| {
-                let (line, col) = e.line_col(source);
-                format!("{line}:{col} {}", e.message)
-            })
-            .collect();
-        (resolved, shown)
+        run(source, |d, errors| {
+            blocs::resolve(d, errors);
+            resolve_all(d, errors)
+        })
     }
 
     fn quota_of(r: &Option<Resolved>) -> u64 {

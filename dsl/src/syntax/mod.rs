@@ -162,8 +162,7 @@ impl SetAside {
     }
 
     fn add_text(&mut self, text: &str, totals: bool) {
-        self.names
-            .extend(scan::names_in(text).into_iter().map(str::to_string));
+        self.names.extend(scan::names_in(text));
         self.totals_unknown |= totals;
         self.count += 1;
     }
@@ -257,15 +256,16 @@ enum Reading {
     /// White space and comments before the first declaration.
     Blank,
     /// A declaration, with its number errors.
-    Read(Option<Declaration>, Vec<Diagnostic>),
+    Read(Option<Box<Declaration>>, Vec<Diagnostic>),
     /// A syntax error, or nesting too deep to parse.
     Failed(Diagnostic),
 }
 
 /// Reads a file with a syntax error one chunk at a time. `first` is pest's
-/// error for the whole file (position in the file, diagnostic): it stands
-/// for the errors of the chunks up to the one it falls in, which the chunks
-/// read alone would report again.
+/// error for the whole file (where pest stopped, and the diagnostic): it
+/// stands in for the same error of the chunk it falls in, and an error a
+/// chunk alone shows before it is no error of the file (pest read the file
+/// further), so it is not reported.
 fn recover(
     source: &str,
     chunks: &[Chunk],
@@ -273,15 +273,13 @@ fn recover(
     set_aside: &mut SetAside,
     errors: &mut CappedErrors,
 ) -> Vec<Declaration> {
-    // The chunk the first error falls in (one starting right at it included).
-    let first_chunk = first
-        .as_ref()
-        .map(|(at, _)| chunks.iter().rposition(|c| c.start <= *at).unwrap_or(0));
-    let mut first = first.map(|(_, d)| d);
+    let stop = first.as_ref().map_or(0, |f| f.0);
+    let mut first = first.map(|f| f.1);
     let mut declarations = Vec::new();
     let mut previous_read = false;
     for (i, chunk) in chunks.iter().enumerate() {
-        if first_chunk == Some(i) {
+        if chunk.start > stop {
+            // Past where pest stopped: its error comes first, in file order.
             errors.extend(first.take());
         }
         let reading = read_chunk(source, chunks, i, previous_read);
@@ -289,22 +287,24 @@ fn recover(
         match reading {
             Reading::Blank => {}
             Reading::Read(declaration, number_errors) if number_errors.is_empty() => {
-                declarations.extend(declaration);
+                declarations.extend(declaration.map(|d| *d));
             }
             Reading::Read(_, number_errors) => {
                 errors.extend(number_errors);
                 set_aside.add(source, chunk, true);
             }
             Reading::Failed(d) => {
-                // Up to the first error's chunk, pest read the whole file
-                // further than the chunk alone: that error is reported already.
-                if first_chunk.is_none_or(|f| i > f) {
-                    errors.push(d);
-                }
                 set_aside.add(source, chunk, false);
+                match first.take() {
+                    Some(f) if f.span == d.span => errors.push(f),
+                    Some(f) if d.span.start < f.span.start => first = Some(f),
+                    Some(f) => errors.extend([f, d]),
+                    None => errors.push(d),
+                }
             }
         }
     }
+    errors.extend(first);
     declarations
 }
 
@@ -325,7 +325,7 @@ fn read_chunk(source: &str, chunks: &[Chunk], i: usize, previous_read: bool) -> 
         Ok(mut pairs) => {
             let mut builder = Builder::new(chunk.start);
             let declaration = pairs.next().and_then(|p| builder.one(p));
-            Reading::Read(declaration, builder.errors)
+            Reading::Read(declaration.map(Box::new), builder.errors)
         }
         Err(e) => {
             let border = (errors::position(&e) == 0 && previous_read && i > 0)
@@ -462,5 +462,77 @@ mod tests {
         let src = format!("rule r = {}a >= 1{}", "(".repeat(10_000), ")".repeat(10_000));
         let e = parse(&src).unwrap_err();
         assert!(e[0].message.contains("nested deeper"), "{:?}", e);
+    }
+
+    /// Every error of `src` as `line:col message`.
+    fn errors_of(src: &str) -> Vec<String> {
+        parse(src)
+            .unwrap_err()
+            .iter()
+            .map(|e| {
+                let (line, col) = e.line_col(src);
+                format!("{line}:{col} {}", e.message)
+            })
+            .collect()
+    }
+
+    #[test]
+    fn parsing_goes_on_at_the_next_declaration() {
+        let src = "member a seats=1\nrule r = seats >=\nmember b seats=x\nrule s = (a\nrule t = a\n";
+        assert_eq!(
+            errors_of(src),
+            [
+                "3:1 expected an amount, found `member`",
+                "3:16 expected an amount, found `x`",
+                "5:1 expected `)`, a comparison (`>=` or `>`), `against`, `and` or `or`, found `rule`",
+            ]
+        );
+        let mut errors = CappedErrors::new();
+        let parsed = parse_recovering(src, &mut errors);
+        let Some(File::Declarations(d)) = parsed.file else {
+            panic!()
+        };
+        // `member a` and `rule t` are read; the three broken ones set aside.
+        assert_eq!(d.len(), 2);
+        assert_eq!(parsed.set_aside.count, 3);
+        assert!(
+            parsed.set_aside.covers("r") && parsed.set_aside.covers("b") && !parsed.set_aside.covers("t")
+        );
+    }
+
+    #[test]
+    fn an_error_where_a_declaration_starts_reads_as_if_it_were_the_first() {
+        // `rule s seats` fails where it starts; pest, reading the file whole,
+        // also expected `rule r` to go on there. The second such error (after
+        // an error) is read with its neighbour and says the same.
+        let src = "member a seats=1\nrule r = a\nrule s seats\nrule u = a\nrule t seats\n";
+        let errors = errors_of(src);
+        assert_eq!(errors.len(), 2);
+        let expected = "expected a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`), \
+                        a comparison (`>=` or `>`), `against`, `and` or `or`, found `rule`";
+        assert_eq!(errors[0], format!("3:1 {expected}"));
+        assert_eq!(errors[1], format!("5:1 {expected}"));
+    }
+
+    #[test]
+    fn the_bracket_form_reports_its_first_error_only() {
+        assert_eq!(
+            errors_of("[3; 1, 2,, 4 x]\nrule r = a\n"),
+            ["1:10 expected an amount or `]`, found `,`"]
+        );
+        let mut set_aside_free = CappedErrors::new();
+        assert!(parse_recovering("# c\n[2; 1, 1]", &mut set_aside_free)
+            .file
+            .is_some());
+    }
+
+    #[test]
+    fn numbers_set_their_declaration_aside() {
+        let src = "member a seats=99999999999999999999\nmembers g x2\nrule r = a and g1\n";
+        let mut errors = CappedErrors::new();
+        let parsed = parse_recovering(src, &mut errors);
+        assert_eq!(errors.total(), 1);
+        assert!(parsed.set_aside.totals_unknown);
+        assert!(parsed.set_aside.covers("a") && !parsed.set_aside.covers("g1"));
     }
 }

@@ -38,6 +38,15 @@ pub(super) struct Chunk {
     pub several_lines: bool,
 }
 
+impl Chunk {
+    /// Records the first place the chunk nests too deeply.
+    fn refuse(&mut self, span: Span, message: String, hint: &str) {
+        if self.too_deep.is_none() {
+            self.too_deep = Some(Diagnostic::error(span, message).with_hint(hint));
+        }
+    }
+}
+
 /// What the scanner is inside of.
 #[derive(Clone, Copy, PartialEq, Eq)]
 enum Inside {
@@ -52,19 +61,11 @@ fn is_ident(b: u8) -> bool {
     b.is_ascii_alphanumeric() || b == b'_'
 }
 
-/// Whether `bytes[i..i + len]` is a whole word (the grammar's identifier
-/// characters are ASCII letters, digits and `_`).
-fn whole_word(bytes: &[u8], i: usize, len: usize) -> bool {
-    let before = i == 0 || !is_ident(bytes[i - 1]);
-    let after = bytes.get(i + len).is_none_or(|&b| !is_ident(b));
-    before && after
-}
-
-/// The declaration keyword starting at `i`, if any.
+/// The declaration keyword at `i` (where a word starts), if any.
 fn keyword_at(bytes: &[u8], i: usize) -> Option<&'static str> {
-    DECLARATION_KEYWORDS
-        .into_iter()
-        .find(|k| bytes[i..].starts_with(k.as_bytes()) && whole_word(bytes, i, k.len()))
+    DECLARATION_KEYWORDS.into_iter().find(|k| {
+        bytes[i..].starts_with(k.as_bytes()) && bytes.get(i + k.len()).is_none_or(|&b| !is_ident(b))
+    })
 }
 
 /// The chunks of `source`, in order, covering it exactly. The first chunk
@@ -80,6 +81,8 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
     }];
     let mut inside = Inside::Code;
     let (mut depth, mut negations) = (0usize, 0usize);
+    // Inside a number (digits and `_` after a digit that starts a word).
+    let mut in_number = false;
     // Lines of the current chunk that hold code, counted up to 2.
     let (mut code_lines, mut line_has_code) = (0u8, false);
     for (i, &b) in bytes.iter().enumerate() {
@@ -99,9 +102,17 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
                     inside = Inside::Comment;
                     continue;
                 }
-                let word_start = i == 0 || !is_ident(bytes[i - 1]);
+                // A word starts after a non-word byte, or right after the
+                // digits of a number (pest reads `2rule` as `2`, `rule`).
+                let word_start = i == 0 || !is_ident(bytes[i - 1]) || (in_number && b.is_ascii_alphabetic());
+                in_number = if word_start {
+                    b.is_ascii_digit()
+                } else {
+                    in_number && (b.is_ascii_digit() || b == b'_')
+                };
                 if word_start {
                     if let Some(k) = keyword_at(bytes, i) {
+                        in_number = false;
                         if let Some(last) = out.last_mut() {
                             last.end = i;
                             last.several_lines = code_lines > 1;
@@ -126,13 +137,11 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
                     b'"' => inside = Inside::Quote,
                     b'(' => {
                         depth += 1;
-                        if depth > MAX_NESTING && chunk.too_deep.is_none() {
-                            chunk.too_deep = Some(
-                                Diagnostic::error(
-                                    Span::new(i, i + 1),
-                                    format!("parentheses nested deeper than {MAX_NESTING}"),
-                                )
-                                .with_hint("split the condition into named parts with `define`"),
+                        if depth > MAX_NESTING {
+                            chunk.refuse(
+                                Span::new(i, i + 1),
+                                format!("parentheses nested deeper than {MAX_NESTING}"),
+                                "split the condition into named parts with `define`",
                             );
                         }
                     }
@@ -142,16 +151,14 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
                             && bytes[i..]
                                 .get(..3)
                                 .is_some_and(|w| w.eq_ignore_ascii_case(b"not"))
-                            && whole_word(bytes, i, 3) =>
+                            && bytes.get(i + 3).is_none_or(|&b| !is_ident(b)) =>
                     {
                         negations += 1;
-                        if negations > MAX_NESTING && chunk.too_deep.is_none() {
-                            chunk.too_deep = Some(
-                                Diagnostic::error(
-                                    Span::new(i, i + 3),
-                                    format!("more than {MAX_NESTING} uses of `not`"),
-                                )
-                                .with_hint("rules are monotone: `not` is refused anyway"),
+                        if negations > MAX_NESTING {
+                            chunk.refuse(
+                                Span::new(i, i + 3),
+                                format!("more than {MAX_NESTING} uses of `not`"),
+                                "rules are monotone: `not` is refused anyway",
                             );
                         }
                     }
@@ -166,35 +173,27 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
     out
 }
 
-/// The names written in `text` outside comments and quoted titles: every
-/// word that starts with a letter or `_`.
-pub(super) fn names_in(text: &str) -> Vec<&str> {
-    let bytes = text.as_bytes();
+/// The names a broken stretch of text may mention, outside comments: each
+/// word that starts with a letter or `_`, and each run of text between
+/// spaces with its other characters dropped (`exec"utive`, `over,ride` and
+/// `a,b` give `executive`, `override` and `ab` besides their words). Quotes
+/// count as stray characters here: in broken text they often are.
+pub(super) fn names_in(text: &str) -> Vec<String> {
+    let is_name = |w: &str| w.starts_with(|c: char| c.is_ascii_alphabetic() || c == '_');
     let mut out = Vec::new();
-    let mut inside = Inside::Code;
-    let mut i = 0;
-    while i < bytes.len() {
-        let b = bytes[i];
-        match inside {
-            Inside::Quote if b == b'"' => inside = Inside::Code,
-            Inside::Quote | Inside::Comment if b == b'\n' => inside = Inside::Code,
-            Inside::Quote | Inside::Comment => {}
-            Inside::Code if b == b'"' => inside = Inside::Quote,
-            Inside::Code if b == b'#' => inside = Inside::Comment,
-            Inside::Code if is_ident(b) => {
-                let end = bytes[i..]
-                    .iter()
-                    .position(|&c| !is_ident(c))
-                    .map_or(bytes.len(), |n| i + n);
-                if !b.is_ascii_digit() {
-                    out.push(&text[i..end]);
-                }
-                i = end;
-                continue;
+    for line in text.lines() {
+        let code = line.split('#').next().unwrap_or("");
+        for run in code.split_ascii_whitespace() {
+            let mut words = run.split(|c: char| !(c.is_ascii_alphanumeric() || c == '_'));
+            out.extend(words.by_ref().filter(|w| is_name(w)).map(str::to_string));
+            let joined: String = run
+                .chars()
+                .filter(|c| c.is_ascii_alphanumeric() || *c == '_')
+                .collect();
+            if is_name(&joined) && joined.len() < run.len() {
+                out.push(joined);
             }
-            Inside::Code => {}
         }
-        i += 1;
     }
     out
 }
@@ -254,10 +253,35 @@ mod tests {
     }
 
     #[test]
-    fn names_skip_numbers_comments_and_titles() {
+    fn a_keyword_right_after_a_number_cuts_as_pest_reads_it() {
+        // pest reads `seats=2rule` as a weight 2, then a rule; `x2rule` and
+        // `a2rule` are names.
         assert_eq!(
-            names_in("member a2 seats=1_0 \"title x\" # rest\nb"),
-            ["member", "a2", "seats", "b"]
+            cuts("member a seats=2rule r = a\nrule s = x2rule and a2rule and 1_0bloc"),
+            [
+                (0, None),
+                (0, Some("member")),
+                (16, Some("rule")),
+                (27, Some("rule")),
+                (61, Some("bloc"))
+            ]
+        );
+        assert_eq!(cuts("rule r = 2 not2not"), [(0, None), (0, Some("rule"))]);
+    }
+
+    #[test]
+    fn names_skip_numbers_and_comments_and_join_broken_words() {
+        assert_eq!(
+            names_in("member a2 seats=1_0 # rest\nb"),
+            ["member", "a2", "seats", "seats1_0", "b"]
+        );
+        assert_eq!(
+            names_in("member exec\"utive"),
+            ["member", "exec", "utive", "executive"]
+        );
+        assert_eq!(
+            names_in("define over,ride = 2"),
+            ["define", "over", "ride", "override"]
         );
     }
 }
