@@ -18,7 +18,7 @@
 //! is an error.
 //!
 //! Errors: every syntax error of the file is reported (the parser sets the
-//! spoilt declarations aside, see [`syntax`](crate::syntax)), then the
+//! spoilt declarations aside, see [`syntax`]), then the
 //! errors of passes 1 to 3 over the well-formed declarations. Pass 1 errors
 //! (duplicates, limits) stop before pass 2; any error stops before pass 4.
 //! At most [`MAX_DIAGNOSTICS`](crate::diagnostic::MAX_DIAGNOSTICS) errors are kept, then a note counts the rest

@@ -13,11 +13,11 @@
 //! keywords and cannot contain one, so the file is cut at its keywords and
 //! each piece is parsed alone: an error sets that one declaration aside and
 //! parsing goes on at the next keyword. Each error reads as it would if it
-//! were the first of the file (see [`errors`]). The `[q; w1, ..., wn]` form is
+//! were the first of the file (see `errors`). The `[q; w1, ..., wn]` form is
 //! the whole file, so it is parsed whole and reports its first syntax error.
 //!
 //! A declaration with a syntax error or a number error is *set aside*
-//! ([`SetAside`]): the compiler checks the others and stays quiet about the
+//! (`SetAside`): the compiler checks the others and stays quiet about the
 //! names the set-aside text mentions, instead of reporting each use of them
 //! as unknown.
 //!
