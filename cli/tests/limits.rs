@@ -417,3 +417,17 @@ fn four_state_share_of_the_largest_total() {
         (1, 0, 0, i128::from(MAX_TOTAL))
     );
 }
+
+#[test]
+fn syntax_errors_per_file() {
+    // Every syntax error is found (parsing goes on at the next declaration),
+    // 100 are kept and the rest counted, so memory stays bounded.
+    let mut source = String::from("member a seats=2\nmember b seats=1\n");
+    for k in 0..50_000 {
+        source.push_str(&format!("rule r{k} = seats >> 1\n"));
+    }
+    let errors = clout_dsl::compile(&source).unwrap_err();
+    assert_eq!(errors.len(), clout_dsl::diagnostic::MAX_DIAGNOSTICS + 1);
+    assert_eq!(clout_dsl::error_count(&errors), 50_000);
+    assert_eq!(errors[100].message, "49900 more errors not shown");
+}

@@ -112,40 +112,9 @@ fn lower_rule(
         too_big: false,
     };
     lowering.lower(k, resolved, d.source);
-    let fail = |e: CoreError, errors: &mut CappedErrors| {
+    if let Some(e) = size_error(&lowering, d.attributes.len()) {
         errors.push(rule_error(decl.name.span, &decl.name.text, e));
-        None
-    };
-    if lowering.too_big {
-        let nodes = lowering.nodes.len();
-        return fail(
-            CoreError::TooManyNodes {
-                nodes,
-                limit: MAX_NODES,
-            },
-            errors,
-        );
-    }
-    // The core's first checks, made before the weight table is built (as the core would report them).
-    let atoms = lowering.atoms.len();
-    if atoms > MAX_ATOMS {
-        return fail(
-            CoreError::TooManyAtoms {
-                atoms,
-                limit: MAX_ATOMS,
-            },
-            errors,
-        );
-    }
-    let attributes = d.attributes.len() + lowering.keys.len();
-    if attributes > MAX_ATTRIBUTES {
-        return fail(
-            CoreError::TooManyAttributes {
-                attributes,
-                limit: MAX_ATTRIBUTES,
-            },
-            errors,
-        );
+        return None;
     }
     let n = d.members.len();
     let mut weights = declared.to_vec();
@@ -198,7 +167,35 @@ fn lower_rule(
             attributes,
             conditions: lowering.conditions,
         }),
-        Err(e) => fail(e, errors),
+        Err(e) => {
+            errors.push(rule_error(decl.name.span, &decl.name.text, e));
+            None
+        }
+    }
+}
+
+/// The core's size checks, made before the weight table is built and
+/// reported as the core would report them (atoms first, then attributes).
+fn size_error(lowering: &Lowering, declared: usize) -> Option<CoreError> {
+    let (nodes, atoms) = (lowering.nodes.len(), lowering.atoms.len());
+    let attributes = declared + lowering.keys.len();
+    if lowering.too_big {
+        Some(CoreError::TooManyNodes {
+            nodes,
+            limit: MAX_NODES,
+        })
+    } else if atoms > MAX_ATOMS {
+        Some(CoreError::TooManyAtoms {
+            atoms,
+            limit: MAX_ATOMS,
+        })
+    } else if attributes > MAX_ATTRIBUTES {
+        Some(CoreError::TooManyAttributes {
+            attributes,
+            limit: MAX_ATTRIBUTES,
+        })
+    } else {
+        None
     }
 }
 

@@ -22,15 +22,7 @@ pub(super) fn syntax_error(
     e: &pest::error::Error<G>,
     alone: bool,
 ) -> Diagnostic {
-    let at = offset + position(e);
-    let found = token_at(source, at);
-    // At the end of the file, point just after the last thing written.
-    let at = if found.is_empty() {
-        end_of_content(source, at)
-    } else {
-        at
-    };
-    let span = Span::new(at, at + found.len().max(1));
+    let (span, found) = located(source, offset, e);
     let mut positives: Vec<G> = match &e.variant {
         pest::error::ErrorVariant::ParsingError { positives, .. } => positives.clone(),
         // pest's own limits ("stack limit reached" on a thread with little stack).
@@ -95,6 +87,25 @@ pub(super) fn syntax_error(
         Some(h) => d.with_hint(h),
         None => d,
     }
+}
+
+/// Where the error is shown, and the token found there (empty at the end of the file).
+fn located<'s>(source: &'s str, offset: usize, e: &pest::error::Error<G>) -> (Span, &'s str) {
+    let at = offset + position(e);
+    let found = token_at(source, at);
+    // At the end of the file, point just after the last thing written.
+    let at = if found.is_empty() {
+        end_of_content(source, at)
+    } else {
+        at
+    };
+    (Span::new(at, at + found.len().max(1)), found)
+}
+
+/// The error where [`syntax_error`] puts it, without its text: for an error
+/// that is only counted (past the ones shown), at a fraction of the cost.
+pub(super) fn counted_only(source: &str, offset: usize, e: &pest::error::Error<G>) -> Diagnostic {
+    Diagnostic::error(located(source, offset, e).0, String::new())
 }
 
 /// Where pest failed, in its input.

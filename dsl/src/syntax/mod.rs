@@ -162,7 +162,13 @@ impl SetAside {
     }
 
     fn add_text(&mut self, text: &str, totals: bool) {
-        self.names.extend(scan::names_in(text));
+        // Most names repeat (`rule`, `seats`): allocate only new ones.
+        let names = &mut self.names;
+        scan::names_in(text, |n| {
+            if !names.contains(n) {
+                names.insert(n.to_string());
+            }
+        });
         self.totals_unknown |= totals;
         self.count += 1;
     }
@@ -282,7 +288,7 @@ fn recover(
             // Past where pest stopped: its error comes first, in file order.
             errors.extend(first.take());
         }
-        let reading = read_chunk(source, chunks, i, previous_read);
+        let reading = read_chunk(source, chunks, i, previous_read, !errors.is_full());
         previous_read = !matches!(reading, Reading::Failed(_));
         match reading {
             Reading::Blank => {}
@@ -308,8 +314,9 @@ fn recover(
     declarations
 }
 
-/// Reads chunk `i` alone; `previous_read` when pest read chunk `i - 1`.
-fn read_chunk(source: &str, chunks: &[Chunk], i: usize, previous_read: bool) -> Reading {
+/// Reads chunk `i` alone; `previous_read` when pest read chunk `i - 1`;
+/// `shown` when an error would be shown (else only its place is needed).
+fn read_chunk(source: &str, chunks: &[Chunk], i: usize, previous_read: bool, shown: bool) -> Reading {
     let chunk = &chunks[i];
     let text = &source[chunk.start..chunk.end];
     if chunk.keyword.is_none() && is_blank(text) {
@@ -327,6 +334,7 @@ fn read_chunk(source: &str, chunks: &[Chunk], i: usize, previous_read: bool) -> 
             let declaration = pairs.next().and_then(|p| builder.one(p));
             Reading::Read(declaration.map(Box::new), builder.errors)
         }
+        Err(e) if !shown => Reading::Failed(errors::counted_only(source, chunk.start, &e)),
         Err(e) => {
             let border = (errors::position(&e) == 0 && previous_read && i > 0)
                 .then(|| border_error(source, &chunks[i - 1], chunk))

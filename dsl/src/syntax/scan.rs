@@ -178,24 +178,23 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
 /// spaces with its other characters dropped (`exec"utive`, `over,ride` and
 /// `a,b` give `executive`, `override` and `ab` besides their words). Quotes
 /// count as stray characters here: in broken text they often are.
-pub(super) fn names_in(text: &str) -> Vec<String> {
+pub(super) fn names_in(text: &str, mut name: impl FnMut(&str)) {
     let is_name = |w: &str| w.starts_with(|c: char| c.is_ascii_alphabetic() || c == '_');
-    let mut out = Vec::new();
+    let is_word_char = |c: char| c.is_ascii_alphanumeric() || c == '_';
     for line in text.lines() {
         let code = line.split('#').next().unwrap_or("");
         for run in code.split_ascii_whitespace() {
-            let mut words = run.split(|c: char| !(c.is_ascii_alphanumeric() || c == '_'));
-            out.extend(words.by_ref().filter(|w| is_name(w)).map(str::to_string));
-            let joined: String = run
-                .chars()
-                .filter(|c| c.is_ascii_alphanumeric() || *c == '_')
-                .collect();
-            if is_name(&joined) && joined.len() < run.len() {
-                out.push(joined);
+            run.split(|c: char| !is_word_char(c))
+                .filter(|w| is_name(w))
+                .for_each(&mut name);
+            if !run.chars().all(is_word_char) {
+                let joined: String = run.chars().filter(|&c| is_word_char(c)).collect();
+                if is_name(&joined) {
+                    name(&joined);
+                }
             }
         }
     }
-    out
 }
 
 #[cfg(test)]
@@ -269,18 +268,24 @@ mod tests {
         assert_eq!(cuts("rule r = 2 not2not"), [(0, None), (0, Some("rule"))]);
     }
 
+    fn names(text: &str) -> Vec<String> {
+        let mut out = Vec::new();
+        names_in(text, |n| out.push(n.to_string()));
+        out
+    }
+
     #[test]
     fn names_skip_numbers_and_comments_and_join_broken_words() {
         assert_eq!(
-            names_in("member a2 seats=1_0 # rest\nb"),
+            names("member a2 seats=1_0 # rest\nb"),
             ["member", "a2", "seats", "seats1_0", "b"]
         );
         assert_eq!(
-            names_in("member exec\"utive"),
+            names("member exec\"utive"),
             ["member", "exec", "utive", "executive"]
         );
         assert_eq!(
-            names_in("define over,ride = 2"),
+            names("define over,ride = 2"),
             ["define", "over", "ride", "override"]
         );
     }
