@@ -86,37 +86,29 @@
 #[cfg(feature = "alloc")]
 extern crate alloc;
 
-mod ballot;
-mod coalition;
-pub mod count;
-mod decide;
+// The stages, in the order data flows through them; each imports only
+// from the stages before it (the device side from the model alone).
+mod model;
 pub mod engine;
-mod error;
-pub mod image;
-pub mod limits;
-pub mod planner;
-mod power;
-pub mod quota;
-mod rule;
-
-#[cfg(feature = "alloc")]
 mod analysis;
-#[cfg(feature = "alloc")]
-pub mod approx;
-#[cfg(feature = "alloc")]
-pub mod ternary;
-#[cfg(feature = "std")]
-pub mod threads;
+mod device;
+#[cfg(any(test, feature = "fixtures"))]
+pub mod fixtures;
 
-pub use ballot::{Ballot, Vote};
-pub use coalition::{Coalition, Members};
-pub use count::{Count1024, Counter, Wide};
-pub use decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
-pub use engine::Engine;
-pub use error::Error;
-pub use image::{ImageError, ImageInfo};
-pub use power::{MemberCounts, PowerTable, RuleCounts};
-pub use rule::{Atom, Condition, Linear, Node, Rule};
-
+// Public paths, unchanged by the folders above.
 #[cfg(feature = "alloc")]
 pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};
+pub use analysis::planner;
+pub use analysis::PowerTable;
+pub use device::decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
+pub use device::image;
+pub use device::image::{ImageError, ImageInfo};
+#[cfg(feature = "alloc")]
+pub use engine::approx;
+#[cfg(feature = "alloc")]
+pub use engine::ternary;
+#[cfg(feature = "std")]
+pub use engine::threads;
+pub use engine::{Engine, MemberCounts, RuleCounts};
+pub use model::{count, limits, quota};
+pub use model::{Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, Vote, Wide};

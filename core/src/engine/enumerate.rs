@@ -13,11 +13,15 @@
 // the caller's scratch.
 #![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
 
-use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
-use crate::count::Counter;
-use crate::limits::MAX_ATTRIBUTES;
-use crate::power::{MemberCounts, RuleCounts};
-use crate::{Engine, Error, Rule};
+use crate::engine::counts::{MemberCounts, RuleCounts};
+use crate::engine::pivots::{reciprocal_sum, shapley_from_sizes, sum_counts};
+use crate::engine::registry::Counting;
+use crate::engine::{Need, Scope, Workspace};
+use crate::model::count::Counter;
+use crate::model::engine_id::Engine;
+use crate::model::error::Error;
+use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::rule::Rule;
 
 /// Most members the enumeration engine accepts.
 pub const MAX_MEMBERS: usize = 30;
@@ -32,18 +36,36 @@ fn check<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<usize, Error> {
     Ok(n)
 }
 
-pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
-    let n = check(rule)?;
-    Ok(Need {
-        counts: 3 * n * n,
-        indices: 0,
-    })
-}
+/// The enumeration engine.
+pub(crate) struct Enumeration;
 
-pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
-    let n = check(rule)?;
-    let per = (n as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
-    Ok((1u128 << n) * per)
+impl Counting for Enumeration {
+    const ENGINE: Engine = Engine::Enumerate;
+    const DESCRIPTION: &'static str = "visits every coalition (2^n of them)";
+    const MINIMAL_COALITIONS: bool = true;
+
+    fn scratch<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<Need, Error> {
+        let n = check(rule)?;
+        Ok(Need {
+            counts: 3 * n * n,
+            indices: 0,
+        })
+    }
+
+    fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<u128, Error> {
+        let n = check(rule)?;
+        let per = (n as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
+        Ok((1u128 << n) * per)
+    }
+
+    fn run<W: AsRef<[u64]>, C: Counter>(
+        rule: &Rule<W>,
+        _: Scope,
+        members: &mut [MemberCounts<C>],
+        work: Workspace<'_, C>,
+    ) -> Result<RuleCounts<C>, Error> {
+        count(rule, members, work)
+    }
 }
 
 struct Sums<'r, W: AsRef<[u64]>> {
@@ -81,7 +103,7 @@ impl<W: AsRef<[u64]>> Sums<'_, W> {
     }
 }
 
-pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
@@ -105,19 +127,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         rule,
         sums: [0; MAX_ATTRIBUTES],
     };
-    let mut out = RuleCounts {
-        members: n,
-        winning: C::ZERO,
-        losing: C::ZERO,
-        minimal_winning: Some(C::ZERO),
-        minimal_blocking: Some(C::ZERO),
-        smallest_winning: None,
-        proper: true,
-        strong: true,
-        factorial: None,
-        shapley_shubik: true,
-        engine: Engine::Enumerate,
-    };
+    let mut out = RuleCounts::<C>::start(n, Engine::Enumerate, true);
     let mut mask: u64 = 0;
     let steps: u64 = 1 << n;
     for step in 0..steps {

@@ -3,7 +3,7 @@
 //! `Coalition<W>` holds `64 * W` members in `W` words on the stack; the
 //! default `W = 1` holds 64, the no-alloc capacity. All operations are O(W).
 
-use crate::Error;
+use crate::model::error::Error;
 
 /// A set of members (the yes-voters of a ballot, or a coalition).
 #[derive(Clone, Copy, PartialEq, Eq, Hash, Debug)]

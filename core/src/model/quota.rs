@@ -17,7 +17,7 @@
 //! yes votes ("fewer than 10 seats in favour") are rejected as
 //! [`Error::NonMonotone`].
 
-use crate::Error;
+use crate::model::error::Error;
 
 /// How the yes-sum is compared with the bound.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -4,7 +4,8 @@
 //! them is absent. A two-state ballot is the special case with no
 //! abstentions and no absences. O(W) per operation, no heap.
 
-use crate::{Coalition, Error};
+use crate::model::coalition::Coalition;
+use crate::model::error::Error;
 
 /// One member's vote.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
