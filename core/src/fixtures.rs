@@ -109,7 +109,11 @@ pub fn four_state_form(form: usize, quorum: i128) -> Linear {
 /// with the plain condition "seats >= `quota`" as `plain = Some((join,
 /// quota))` (feature `alloc`, or the core's tests).
 #[cfg(any(test, feature = "alloc"))]
-pub fn four_state_rule(seats: &[u64], form: Linear, plain: Option<(Node, u64)>) -> Result<Rule<Vec<u64>>, Error> {
+pub fn four_state_rule(
+    seats: &[u64],
+    form: Linear,
+    plain: Option<(Node, u64)>,
+) -> Result<Rule<Vec<u64>>, Error> {
     use crate::model::atom::Condition;
     let weights = seats_and_heads(seats);
     match plain {

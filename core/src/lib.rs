@@ -86,20 +86,22 @@
 #[cfg(feature = "alloc")]
 extern crate alloc;
 
-// The stages, in the order data flows through them; each imports only
-// from the stages before it (the device side from the model alone).
-mod model;
-pub mod engine;
+// The stages: model -> engine -> analysis, and the device side beside them.
+// Each imports only from the stages before it, the device side from the
+// model alone (each folder's mod.rs states its rule; `tests/layers.rs`
+// checks them).
 mod analysis;
 mod device;
+pub mod engine;
 #[cfg(any(test, feature = "fixtures"))]
 pub mod fixtures;
+mod model;
 
 // Public paths, unchanged by the folders above.
-#[cfg(feature = "alloc")]
-pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};
 pub use analysis::planner;
 pub use analysis::PowerTable;
+#[cfg(feature = "alloc")]
+pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};
 pub use device::decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
 pub use device::image;
 pub use device::image::{ImageError, ImageInfo};
@@ -111,4 +113,6 @@ pub use engine::ternary;
 pub use engine::threads;
 pub use engine::{Engine, MemberCounts, RuleCounts};
 pub use model::{count, limits, quota};
-pub use model::{Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, Vote, Wide};
+pub use model::{
+    Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, Vote, Wide,
+};

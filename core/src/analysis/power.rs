@@ -20,7 +20,6 @@
 //! | Deegan-Packel | (1/|M|) Σ_{S∈M, i∈S} 1/|S|, M = minimal winning coalitions | Deegan & Packel 1978 |
 //! | Holler public good | m_i / Σ m_j, m_i = minimal winning coalitions containing i | Holler 1982 |
 
-
 use crate::engine::{MemberCounts, RuleCounts};
 use crate::model::count::{ratio, scaled, Counter};
 

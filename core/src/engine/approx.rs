@@ -605,7 +605,9 @@ mod tests {
 
     /// Exact counts of every member by `engine`.
     fn exact(rule: &Rule<Vec<u64>>, engine: Engine) -> Vec<MemberCounts<Count1024>> {
-        testing::count::<_, Count1024>(rule, engine, Scope::All).unwrap().1
+        testing::count::<_, Count1024>(rule, engine, Scope::All)
+            .unwrap()
+            .1
     }
 
     /// The Penrose measure from exact counts: swings / 2^(n - 1).

@@ -104,4 +104,3 @@ impl<C: Counter> RuleCounts<C> {
         scaled(self.winning, self.members)
     }
 }
-

@@ -46,7 +46,8 @@ fn shape<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<(usize, u128)> {
         let n = rule.members();
         let mut order = alloc::vec![0u32; n];
         let mut starts = alloc::vec![0u32; n + 1];
-        let types = crate::engine::member_types::group_types(rule, rule.used_attributes(), &mut order, &mut starts);
+        let types =
+            crate::engine::member_types::group_types(rule, rule.used_attributes(), &mut order, &mut starts);
         if types > MAX_TYPES {
             return None;
         }
@@ -94,7 +95,8 @@ pub(crate) struct Profiles;
 
 impl Counting for Profiles {
     const ENGINE: Engine = Engine::Profile;
-    const DESCRIPTION: &'static str = "visits every profile of member types, weighted by binomial coefficients";
+    const DESCRIPTION: &'static str =
+        "visits every profile of member types, weighted by binomial coefficients";
     const MINIMAL_COALITIONS: bool = true;
 
     fn scratch<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<Need, Error> {

@@ -269,7 +269,10 @@ mod tests {
     fn passes(rule: &Rule<Vec<u64>>, votes: &[Vote]) -> bool {
         let ballot = Ballot::<1>::from_votes(votes).unwrap();
         let mut sums = [[0u64; MAX_ATTRIBUTES]; 3];
-        for (group, out) in [ballot.yes(), ballot.no(), ballot.abstain()].into_iter().zip(&mut sums) {
+        for (group, out) in [ballot.yes(), ballot.no(), ballot.abstain()]
+            .into_iter()
+            .zip(&mut sums)
+        {
             rule.yes_sums(group, out).unwrap();
         }
         let [yes, no, abstain] = sums;

@@ -107,7 +107,6 @@ pub enum Condition {
     Linear(Linear),
 }
 
-
 #[cfg(test)]
 mod tests {
     use super::*;

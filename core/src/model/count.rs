@@ -94,7 +94,6 @@ pub(crate) fn scaled<C: Counter>(count: C, shift: usize) -> f64 {
     libm::ldexp(m, e.saturating_sub(shift as i32))
 }
 
-
 fn parts_u128(v: u128) -> (f64, i32) {
     if v == 0 {
         return (0.0, 0);

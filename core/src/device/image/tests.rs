@@ -2,9 +2,9 @@
 
 use super::*;
 use crate::device::decide::{critical, decide, decide_ballot};
+use crate::model::atom::{Atom, Linear};
 use crate::model::ballot::{Ballot, Vote};
 use crate::model::coalition::Coalition;
-use crate::model::atom::{Atom, Linear};
 use crate::model::limits::MAX_MEMBERS;
 use crate::model::rule::{Node, Rule};
 use proptest::prelude::*;
