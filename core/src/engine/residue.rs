@@ -322,7 +322,7 @@ fn reconstruct_exact<C: Counter>(residues: &[u64], primes: &[u64]) -> Result<C, 
 
 #[cfg(feature = "std")]
 fn run_passes(shape: &Shape<'_>, primes: &[u64]) -> Vec<Pass> {
-    let threads = crate::threads::available().min(primes.len()).max(1);
+    let threads = crate::engine::threads::available().min(primes.len()).max(1);
     let mut out: Vec<Option<Pass>> = (0..primes.len()).map(|_| None).collect();
     std::thread::scope(|scope| {
         let chunks: Vec<_> = out

@@ -246,7 +246,7 @@ fn weight_sums_and_depth_are_checked() {
     );
 
     // The deepest formula allowed, then one level more.
-    let mut f = [Node::All(1); crate::limits::MAX_DEPTH + 1];
+    let mut f = [Node::All(1); crate::model::limits::MAX_DEPTH + 1];
     f[0] = Node::Atom(0);
     let deep = Rule::new(
         1,
@@ -271,8 +271,8 @@ fn weight_sums_and_depth_are_checked() {
     assert_eq!(
         load_err(&image),
         ImageError::Rule(Error::TooDeep {
-            depth: crate::limits::MAX_DEPTH + 1,
-            limit: crate::limits::MAX_DEPTH
+            depth: crate::model::limits::MAX_DEPTH + 1,
+            limit: crate::model::limits::MAX_DEPTH
         })
     );
 }
