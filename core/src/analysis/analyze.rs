@@ -6,12 +6,11 @@
 //! allocated; this layer adds O(n) for the result vector. Counts are exact
 //! in the caller's [`Counter`] (overflow is [`Error::CountOverflow`]).
 
-use alloc::vec;
 use alloc::vec::Vec;
 
 use crate::analysis::planner::{plan_within, Limits, Plan, DEFAULT_BUDGET, DEFAULT_MEMORY};
 use crate::analysis::power::PowerTable;
-use crate::engine::{self, Engine, MemberCounts, RuleCounts, Scope, Workspace};
+use crate::engine::{self, Engine, MemberCounts, RuleCounts, Scope};
 use crate::model::count::Counter;
 use crate::model::error::Error;
 use crate::model::rule::Rule;
@@ -122,15 +121,7 @@ pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
             p
         }
     };
-    let need = engine::need_for(rule, plan.engine, options.scope)?;
-    let mut counts = vec![C::ZERO; need.counts];
-    let mut indices = vec![0u32; need.indices];
-    let mut members = vec![MemberCounts::EMPTY; rule.members()];
-    let work = Workspace {
-        counts: &mut counts,
-        indices: &mut indices,
-    };
-    let totals = engine::try_count_for(rule, plan.engine, options.scope, &mut members, work)?;
+    let (totals, members) = engine::count_allocating(rule, plan.engine, options.scope)?;
     Ok(Analysis {
         rule: totals,
         members,

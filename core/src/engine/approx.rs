@@ -594,7 +594,7 @@ pub fn normal_approximation<W: AsRef<[u64]>>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::engine::{testing, MemberCounts, Scope};
+    use crate::engine::{count_allocating, MemberCounts, Scope};
     use crate::fixtures::{seats_and_heads, two_tier};
     use crate::model::count::{scaled, Count1024};
 
@@ -605,7 +605,7 @@ mod tests {
 
     /// Exact counts of every member by `engine`.
     fn exact(rule: &Rule<Vec<u64>>, engine: Engine) -> Vec<MemberCounts<Count1024>> {
-        testing::count::<_, Count1024>(rule, engine, Scope::All)
+        count_allocating::<_, Count1024>(rule, engine, Scope::All)
             .unwrap()
             .1
     }

@@ -31,7 +31,7 @@
 use crate::engine::counts::{MemberCounts, RuleCounts};
 use crate::engine::member_types::Types;
 use crate::engine::pivots::{shapley_from_sizes, sum_counts};
-use crate::engine::registry::Counting;
+use crate::engine::registry::{Counting, Job};
 use crate::engine::{Need, Scope, Workspace};
 use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
@@ -137,22 +137,15 @@ impl Counting for Dense {
         if cfg!(feature = "alloc") && scope == Scope::Swings {
             return residue_memory(rule, count_bytes);
         }
-        let need = need(rule, scope == Scope::All)?;
-        Ok((need.counts as u64)
-            .saturating_mul(count_bytes as u64)
-            .saturating_add((need.indices as u64).saturating_mul(4)))
+        Ok(need(rule, scope == Scope::All)?.bytes(count_bytes))
     }
 
-    fn run<W: AsRef<[u64]>, C: Counter>(
-        rule: &Rule<W>,
-        scope: Scope,
-        members: &mut [MemberCounts<C>],
-        work: Workspace<'_, C>,
-    ) -> Result<RuleCounts<C>, Error> {
-        let mut out = count(rule, members, work, scope == Scope::All)?;
+    fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
+        let all = job.scope == Scope::All;
+        let mut out = count(job.rule, job.members, job.work, all)?;
         // Without sizes the single-attribute paths count no pivots; the
         // compound path does, but only `All` promises them.
-        out.shapley_shubik = scope == Scope::All;
+        out.shapley_shubik = all;
         Ok(out)
     }
 }
@@ -205,22 +198,22 @@ fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, sizes: bool) -> Result<u128, Error> {
     }
 }
 
-/// Multiplies the table by (1 + y x^{w_member}); rows 0..=filled are in use.
-fn multiply<W: AsRef<[u64]>, C: Counter>(
-    rule: &Rule<W>,
-    sp: &Space,
+/// Multiplies the table of `per_row` states a row by (1 + y x^w), where
+/// adding the member moves state `s` to `shift(s)`; rows 0..=filled are in use.
+fn multiply<C: Counter>(
     table: &mut [C],
+    per_row: usize,
     filled: usize,
-    member: usize,
+    shift: impl Fn(usize) -> usize,
 ) -> Result<(), Error> {
-    let p = sp.per_row;
+    let p = per_row;
     for k in (0..=filled).rev() {
         let (low, high) = table.split_at_mut((k + 1) * p);
         let row = &low[k * p..];
         let next = &mut high[..p];
         for (s, &c) in row.iter().enumerate() {
             if !c.is_zero() {
-                let t = sp.shifted(rule, s, member);
+                let t = shift(s);
                 next[t] = next[t].add(c)?;
             }
         }
@@ -240,7 +233,7 @@ fn build<W: AsRef<[u64]>, C: Counter>(
     }
     table[0] = C::ONE;
     for (filled, i) in (0..rule.members()).filter(|&i| Some(i) != skip).enumerate() {
-        multiply(rule, sp, table, filled, i)?;
+        multiply(table, sp.per_row, filled, |s| sp.shifted(rule, s, i))?;
     }
     Ok(())
 }
@@ -285,17 +278,7 @@ fn count_single<W: AsRef<[u64]>, C: Counter>(
     for (filled, i) in (0..n).enumerate() {
         let w = rule.weight(attr, i) as usize;
         if sizes {
-            for k in (0..=filled).rev() {
-                let (low, high) = table.split_at_mut((k + 1) * p);
-                let row = &low[k * p..];
-                let next = &mut high[..p];
-                for (s, &c) in row.iter().enumerate() {
-                    if !c.is_zero() {
-                        let t = (s + w).min(cap);
-                        next[t] = next[t].add(c)?;
-                    }
-                }
-            }
+            multiply(table, p, filled, |s| (s + w).min(cap))?;
         } else {
             // In place: every target index is at or above its source, so a
             // descending sweep reads only values not yet updated. The cap
@@ -537,7 +520,7 @@ fn count<W: AsRef<[u64]>, C: Counter>(
 
 #[cfg(test)]
 mod tests {
-    use crate::engine::{testing, Engine, Scope};
+    use crate::engine::{count_allocating, Engine, Scope};
     use crate::model::atom::Atom;
     use crate::model::rule::{Node, Rule};
     use proptest::prelude::*;
@@ -558,9 +541,9 @@ mod tests {
             let atoms = [Atom { attribute: 0, quota: q }, Atom { attribute: 0, quota: q / 2 + 1 }];
             let f: &[Node] = if two { &[Node::Atom(0), Node::Atom(1), Node::Any(2)] } else { &[Node::Atom(0)] };
             let rule = Rule::new(n, w.clone(), &atoms, f).unwrap();
-            let (oracle, oracle_members) = testing::count::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+            let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
             for scope in [Scope::All, Scope::Swings] {
-                let (got, members) = testing::count::<_, u128>(&rule, Engine::Dense, scope).unwrap();
+                let (got, members) = count_allocating::<_, u128>(&rule, Engine::Dense, scope).unwrap();
                 prop_assert_eq!(got.winning, oracle.winning);
                 prop_assert_eq!(got.losing, oracle.losing);
                 prop_assert_eq!(got.proper, oracle.proper);

@@ -15,7 +15,7 @@
 
 use crate::engine::counts::{MemberCounts, RuleCounts};
 use crate::engine::pivots::{reciprocal_sum, shapley_from_sizes, sum_counts};
-use crate::engine::registry::Counting;
+use crate::engine::registry::{Counting, Job};
 use crate::engine::{Need, Scope, Workspace};
 use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
@@ -58,13 +58,8 @@ impl Counting for Enumeration {
         Ok((1u128 << n) * per)
     }
 
-    fn run<W: AsRef<[u64]>, C: Counter>(
-        rule: &Rule<W>,
-        _: Scope,
-        members: &mut [MemberCounts<C>],
-        work: Workspace<'_, C>,
-    ) -> Result<RuleCounts<C>, Error> {
-        count(rule, members, work)
+    fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
+        count(job.rule, job.members, job.work)
     }
 }
 

@@ -42,18 +42,18 @@ pub mod ternary;
 #[cfg(feature = "std")]
 pub mod threads;
 
-#[cfg(test)]
-pub(crate) mod testing;
-
 pub use crate::model::engine_id::Engine;
 pub use counts::{MemberCounts, RuleCounts};
+
+#[cfg(feature = "alloc")]
+use alloc::{vec, vec::Vec};
 
 use crate::model::count::Counter;
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
 use crate::model::rule::Rule;
 use pivots::factorial;
-use registry::{ask, Cost, Run, Scratch, Tables};
+use registry::{ask, Cost, Job, Scratch, Tables};
 
 /// Scratch an engine needs for a rule: `counts` elements of the count type
 /// and `indices` elements of `u32`.
@@ -63,6 +63,15 @@ pub struct Need {
     pub counts: usize,
     /// `u32` elements.
     pub indices: usize,
+}
+
+impl Need {
+    /// Bytes of this scratch with counts of `count_bytes` bytes (saturating).
+    pub(crate) fn bytes(self, count_bytes: usize) -> u64 {
+        (self.counts as u64)
+            .saturating_mul(count_bytes as u64)
+            .saturating_add((self.indices as u64).saturating_mul(4))
+    }
 }
 
 /// Caller-owned scratch for an engine.
@@ -171,7 +180,7 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
     }
     let mut counts = ask(
         engine,
-        Run {
+        Job {
             rule,
             scope,
             members: &mut *members,
@@ -181,6 +190,26 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
     mark_veto_and_dictators(rule, members);
     counts.factorial = factorial(n).ok();
     Ok(counts)
+}
+
+/// [`try_count_for`] with scratch and results allocated here: the
+/// convenience layer's counting step and the engines' tests.
+#[cfg(any(test, feature = "alloc"))]
+pub(crate) fn count_allocating<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    engine: Engine,
+    scope: Scope,
+) -> Result<(RuleCounts<C>, Vec<MemberCounts<C>>), Error> {
+    let need = need_for(rule, engine, scope)?;
+    let mut counts = vec![C::ZERO; need.counts];
+    let mut indices = vec![0u32; need.indices];
+    let mut members = vec![MemberCounts::EMPTY; rule.members()];
+    let work = Workspace {
+        counts: &mut counts,
+        indices: &mut indices,
+    };
+    let totals = try_count_for(rule, engine, scope, &mut members, work)?;
+    Ok((totals, members))
 }
 
 /// Veto: the rule fails when everyone but the member votes yes.
@@ -214,8 +243,8 @@ fn mark_veto_and_dictators<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, members:
 /// all the same, it applies to no rule.
 #[cfg(not(feature = "alloc"))]
 mod diagram {
-    use super::registry::Counting;
-    use super::{MemberCounts, Need, RuleCounts, Scope, Workspace};
+    use super::registry::{Counting, Job};
+    use super::{Need, RuleCounts, Scope};
     use crate::model::count::Counter;
     use crate::model::engine_id::Engine;
     use crate::model::error::Error;
@@ -238,12 +267,7 @@ mod diagram {
         fn cost<W: AsRef<[u64]>>(_: &Rule<W>, _: Scope) -> Result<u128, Error> {
             Err(UNSUITABLE)
         }
-        fn run<W: AsRef<[u64]>, C: Counter>(
-            _: &Rule<W>,
-            _: Scope,
-            _: &mut [MemberCounts<C>],
-            _: Workspace<'_, C>,
-        ) -> Result<RuleCounts<C>, Error> {
+        fn run<W: AsRef<[u64]>, C: Counter>(_: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
             Err(UNSUITABLE)
         }
     }

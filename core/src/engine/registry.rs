@@ -57,22 +57,14 @@ pub(crate) trait Counting {
     /// Estimated bytes of the engine's tables with counts of `count_bytes`
     /// bytes: its scratch unless it allocates tables of its own.
     fn tables<W: AsRef<[u64]>>(rule: &Rule<W>, scope: Scope, count_bytes: usize) -> Result<u64, Error> {
-        let need = Self::scratch(rule, scope)?;
-        Ok((need.counts as u64)
-            .saturating_mul(count_bytes as u64)
-            .saturating_add((need.indices as u64).saturating_mul(4)))
+        Ok(Self::scratch(rule, scope)?.bytes(count_bytes))
     }
 
-    /// Counts `rule`: `members` has exactly one cleared entry per member and
-    /// `work` at least [`scratch`](Self::scratch) elements (both checked by
-    /// the caller, [`crate::engine::try_count_for`]), which also marks veto
-    /// members and dictators and sets the factorial afterwards.
-    fn run<W: AsRef<[u64]>, C: Counter>(
-        rule: &Rule<W>,
-        scope: Scope,
-        members: &mut [MemberCounts<C>],
-        work: Workspace<'_, C>,
-    ) -> Result<RuleCounts<C>, Error>;
+    /// Runs `job`, whose members have one cleared entry each and whose
+    /// scratch holds at least [`scratch`](Self::scratch) (both checked by
+    /// [`crate::engine::try_count_for`], which also marks veto members and
+    /// dictators and sets the factorial afterwards).
+    fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error>;
 }
 
 /// Something to find out from, or do with, one engine; [`ask`] answers it
@@ -193,17 +185,21 @@ impl<W: AsRef<[u64]>> Question for Tables<'_, W> {
     }
 }
 
-/// [`Counting::run`] as a question.
-pub(crate) struct Run<'a, W: AsRef<[u64]>, C> {
+/// One counting job, and [`Counting::run`] as a question.
+pub(crate) struct Job<'a, W: AsRef<[u64]>, C> {
+    /// The rule to count.
     pub rule: &'a Rule<W>,
+    /// What to count.
     pub scope: Scope,
+    /// One cleared entry per member.
     pub members: &'a mut [MemberCounts<C>],
+    /// Scratch of at least the engine's [`Counting::scratch`].
     pub work: Workspace<'a, C>,
 }
 
-impl<W: AsRef<[u64]>, C: Counter> Question for Run<'_, W, C> {
+impl<W: AsRef<[u64]>, C: Counter> Question for Job<'_, W, C> {
     type Answer = Result<RuleCounts<C>, Error>;
     fn answer<E: Counting>(self) -> Self::Answer {
-        E::run(self.rule, self.scope, self.members, self.work)
+        E::run(self)
     }
 }

@@ -348,7 +348,7 @@ fn run_passes(shape: &Shape<'_>, primes: &[u64]) -> Vec<Pass> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::engine::testing;
+    use crate::engine::count_allocating;
     use crate::engine::Scope;
     use crate::model::count::Count1024;
 
@@ -366,8 +366,8 @@ mod tests {
         let w: Vec<u64> = (0..210).map(|i| 1 + i % 3).collect();
         for q in [1u64, 150, 211, 300, 420] {
             let rule = Rule::weighted(q, w.clone()).unwrap();
-            let exact = testing::count::<_, Count1024>(&rule, Engine::Profile, Scope::All).unwrap();
-            let fast = testing::count::<_, Count1024>(&rule, Engine::Dense, Scope::Swings).unwrap();
+            let exact = count_allocating::<_, Count1024>(&rule, Engine::Profile, Scope::All).unwrap();
+            let fast = count_allocating::<_, Count1024>(&rule, Engine::Dense, Scope::Swings).unwrap();
             assert_eq!(fast.0.winning, exact.0.winning, "q = {q}");
             assert_eq!(fast.0.losing, exact.0.losing);
             assert_eq!((fast.0.proper, fast.0.strong), (exact.0.proper, exact.0.strong));

@@ -257,7 +257,7 @@ pub fn passage_with_attendance<W: AsRef<[u64]>>(rule: &Rule<W>, attendance: f64)
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::engine::{testing, Engine, Scope};
+    use crate::engine::{count_allocating, Engine, Scope};
     use crate::fixtures::{four_state_form, four_state_rules};
     use crate::model::atom::Condition;
     use crate::model::ballot::{Ballot, Vote};
@@ -338,7 +338,7 @@ mod tests {
             prop_assert!((fast - total).abs() < 1e-12, "{} vs {}", fast, total);
             // Full attendance is the binary game's probability of passage.
             if p == 1.0 {
-                let (binary, _) = testing::count::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+                let (binary, _) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
                 prop_assert!((fast - binary.passage_probability()).abs() < 1e-12);
             }
         }

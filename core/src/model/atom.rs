@@ -113,38 +113,23 @@ mod tests {
 
     #[test]
     fn binary_quotas_of_linear_forms() {
+        use crate::fixtures::four_state_form;
         // seats yes > 1/2 of cast: 2Y > Y + N  <=>  Y - N >= 1; with T = 115,
         // Y - (115 - Y) >= 1  <=>  Y >= 58 = "more than half of 115".
-        let l = Linear {
-            attribute: 0,
-            yes: 1,
-            no: -1,
-            abstain: 0,
-            bound: 1,
-        };
+        let l = four_state_form(0, 0);
         assert_eq!(l.binary_quota(115), 58);
         assert_eq!(l.binary_quota(100), 51);
         // count yes >= 2/3 of present: 3Y >= 2(Y + N + A)  <=>  Y - 2N - 2A >= 0;
         // binary: 3Y >= 2T, T = 27: Y >= 18.
-        let l = Linear {
-            attribute: 0,
-            yes: 1,
-            no: -2,
-            abstain: -2,
-            bound: 0,
-        };
-        assert_eq!(l.binary_quota(27), 18);
+        assert_eq!(four_state_form(1, 0).binary_quota(27), 18);
         // count present >= 9 (a quorum): everyone is present in the binary game.
-        let l = Linear {
-            attribute: 0,
-            yes: 1,
-            no: 1,
-            abstain: 1,
-            bound: 9,
-        };
+        let l = four_state_form(2, 9);
         assert_eq!(l.binary_quota(27), 0);
-        assert_eq!(l.binary_quota(5), 6); // 5 members can never make a quorum of 9
-                                          // Not monotone: a yes vote weighs less than a no vote.
+        // 5 members can never make a quorum of 9.
+        assert_eq!(l.binary_quota(5), 6);
+        // seats yes >= 2 * seats no: Y >= 2(T - Y)  <=>  3Y >= 2T; T = 10: Y >= 7.
+        assert_eq!(four_state_form(3, 0).binary_quota(10), 7);
+        // Not monotone: a yes vote weighs less than a no vote.
         let l = Linear {
             attribute: 0,
             yes: -1,

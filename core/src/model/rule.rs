@@ -499,28 +499,7 @@ mod tests {
     fn evaluates_and_or() {
         // seats: 3,2,1 ; heads: 1,1,1. (seats >= 4 and heads >= 2) or seats >= 6
         let w = [3u64, 2, 1, 1, 1, 1];
-        let atoms = [
-            Atom {
-                attribute: 0,
-                quota: 4,
-            },
-            Atom {
-                attribute: 1,
-                quota: 2,
-            },
-            Atom {
-                attribute: 0,
-                quota: 6,
-            },
-        ];
-        let f = [
-            Node::Atom(0),
-            Node::Atom(1),
-            Node::All(2),
-            Node::Atom(2),
-            Node::Any(2),
-        ];
-        let r = Rule::new(3, &w[..], &atoms, &f).unwrap();
+        let r = crate::fixtures::two_tier(3, &w[..], [4, 2, 6]).unwrap();
         let p = |m: &[usize]| r.passes(&Coalition::<1>::from_members(m).unwrap()).unwrap();
         assert!(p(&[0, 1]));
         assert!(p(&[0, 2]));

@@ -280,13 +280,7 @@ fn weight_sums_and_depth_are_checked() {
 /// A fictional majority of those present: more yes than no
 /// (`Y - N >= 1`), stored as a four-state linear condition.
 fn more_yes_than_no() -> Rule<[u64; 3]> {
-    let l = Linear {
-        attribute: 0,
-        yes: 1,
-        no: -1,
-        abstain: 0,
-        bound: 1,
-    };
+    let l = crate::fixtures::four_state_form(0, 0);
     Rule::with_conditions(3, [2u64, 1, 1], &[Condition::Linear(l)], &[Node::Atom(0)]).unwrap()
 }
 

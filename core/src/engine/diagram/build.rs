@@ -223,6 +223,17 @@ fn classify<W: AsRef<[u64]>>(
     }
 }
 
+/// [`Error::TooCostly`] once a diagram has more than `max_nodes` nodes.
+fn within_nodes(total: usize, max_nodes: usize) -> Result<(), Error> {
+    if total > max_nodes {
+        return Err(Error::TooCostly {
+            estimate: total as u128,
+            budget: max_nodes as u128,
+        });
+    }
+    Ok(())
+}
+
 fn decided(key: &[u64]) -> bool {
     key[0] == TRUE_KEY || key[0] == FALSE_KEY
 }
@@ -282,12 +293,7 @@ pub(crate) fn build<W: AsRef<[u64]>>(
             no.push(z);
         }
         total += next.len();
-        if total > max_nodes {
-            return Err(Error::TooCostly {
-                estimate: total as u128,
-                budget: max_nodes as u128,
-            });
-        }
+        within_nodes(total, max_nodes)?;
         current = next;
     }
     let base = starts[n];
@@ -363,12 +369,7 @@ pub(crate) fn proper_and_strong<W: AsRef<[u64]>>(
             }
         }
         total += next.len();
-        if total > max_nodes {
-            return Err(Error::TooCostly {
-                estimate: total as u128,
-                budget: max_nodes as u128,
-            });
-        }
+        within_nodes(total, max_nodes)?;
         current = next;
     }
     let (mut proper, mut strong) = (true, true);

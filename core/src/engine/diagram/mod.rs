@@ -46,8 +46,8 @@ use alloc::vec::Vec;
 
 use crate::engine::counts::{MemberCounts, RuleCounts};
 use crate::engine::pivots::shapley_from_sizes;
-use crate::engine::registry::Counting;
-use crate::engine::{Need, Scope, Workspace, DIAGRAM_DESCRIPTION};
+use crate::engine::registry::{Counting, Job};
+use crate::engine::{Need, Scope, DIAGRAM_DESCRIPTION};
 use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
@@ -147,13 +147,8 @@ impl Counting for Diagrams {
         Ok(estimate_memory(rule, count_bytes))
     }
 
-    fn run<W: AsRef<[u64]>, C: Counter>(
-        rule: &Rule<W>,
-        _: Scope,
-        members: &mut [MemberCounts<C>],
-        _: Workspace<'_, C>,
-    ) -> Result<RuleCounts<C>, Error> {
-        count(rule, members, Order::LightFirst, DEFAULT_MEMORY_LIMIT)
+    fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
+        count(job.rule, job.members, Order::LightFirst, DEFAULT_MEMORY_LIMIT)
     }
 }
 

@@ -1,7 +1,7 @@
 //! Tests of the diagram engine against enumeration.
 
 use super::*;
-use crate::engine::testing;
+use crate::engine::count_allocating;
 use crate::fixtures::{two_tier, two_tier_atoms};
 use crate::model::atom::Atom;
 use crate::model::limits::MAX_TOTAL;
@@ -26,9 +26,9 @@ fn totals_at_the_top_of_u64() {
     );
     let max = MAX_TOTAL;
     let rule = Rule::weighted(max, vec![max - 3, 1, 1, 1, 0]).unwrap();
-    let d = testing::count::<_, u128>(&rule, Engine::Diagram, Scope::All).unwrap();
+    let d = count_allocating::<_, u128>(&rule, Engine::Diagram, Scope::All).unwrap();
     assert_eq!(d.0.winning, 2); // all four weighted members, with or without the fifth
-    let e = testing::count::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+    let e = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
     assert_eq!(d.0.winning, e.0.winning);
     for (a, b) in d.1.iter().zip(&e.1) {
         assert_eq!(a.swings, b.swings);
@@ -72,7 +72,7 @@ proptest! {
         let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
         let rule = rule_from(n, w, q, shape);
         let order = [Order::Declared, Order::HeavyFirst, Order::LightFirst][order as usize];
-        let (oracle, oracle_members) = testing::count::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+        let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
         let mut members = vec![MemberCounts::<u128>::EMPTY; n];
         let got = count(&rule, &mut members, order, DEFAULT_MEMORY_LIMIT).unwrap();
         prop_assert_eq!(got.winning, oracle.winning);
