@@ -9,13 +9,22 @@
 //!   "fewer than 4 against" into exact integer quotas.
 //! * [`decide`] and [`critical`]: the outcome of one vote, its tallies, and
 //!   the members whose switch would flip it. No heap, nanoseconds.
-//! * [`engine`]: exact swing counts and pivot counts by three engines
-//!   (enumeration, type profiles, capped generating functions), chosen by
-//!   [`planner::plan`] or forced by the caller.
+//! * [`engine`]: exact swing counts and pivot counts by four engines
+//!   (enumeration, type profiles, capped generating functions, decision
+//!   diagrams) behind one interface, chosen by [`planner::plan`] or forced
+//!   by the caller; `approx` and `ternary` (feature `alloc`) beside them.
 //! * [`PowerTable`]: every standard index from those counts (normalized and
 //!   absolute Banzhaf, Shapley-Shubik, Coleman, Johnston, Deegan-Packel,
 //!   Holler) and the dummy / veto / dictator flags; [`RuleCounts`] for
 //!   winning coalitions, passage probability, proper / strong / decisive.
+//!
+//! ## Layout
+//! The source folders follow the data: `model/` (rules, atoms, quotas,
+//! coalitions, ballots, limits, counts, errors), `engine/` (the engines and
+//! their registry), `analysis/` (planner, indices, the allocating layer)
+//! and `device/` (deciding ballots, rule images). Each imports only from
+//! the folders before it; the device side from the model alone. The public
+//! paths are the re-exports below.
 //!
 //! ## Model
 //! Indices measure a priori power: every member votes yes or no

@@ -12,7 +12,7 @@
 //! each module.
 
 #[cfg(feature = "alloc")]
-pub mod analyze;
+mod analyze;
 pub mod planner;
 pub mod power;
 

@@ -3,7 +3,9 @@
 //! [`decide`] is O(n_yes * attributes_used + nodes); [`critical`] is
 //! O(n * (atoms + nodes)) after one tally. Neither allocates; the largest
 //! stack object is the per-attribute sum array (`8 * MAX_ATTRIBUTES` bytes)
-//! plus the tallies in [`Decision`].
+//! plus the tallies in [`Decision`]. Sums cannot overflow: every
+//! attribute's total was checked when the rule was built, and four-state
+//! conditions are evaluated exactly in `i128`.
 
 use crate::model::ballot::Ballot;
 use crate::model::coalition::Coalition;

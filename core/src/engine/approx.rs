@@ -16,6 +16,14 @@
 //!
 //! Every figure here is an estimate and is labelled with its half-width;
 //! nothing in this module is exact.
+//!
+//! Time: Monte Carlo O(samples * (n + atoms + nodes)) per figure set,
+//! at most `max_samples` draws; [`penrose_f64`] O(n q) for quota q below
+//! 2^31; [`normal_approximation`] O(n) for Penrose and O(400 n) for
+//! Shapley-Shubik. Space O(n) per thread (plus a 256-entry sum table per 8
+//! members in the one-threshold sampler), O(q) for [`penrose_f64`].
+//! Overflow: hit counters are `u64` and count at most `max_samples` draws;
+//! coalition sums stay below the checked attribute totals; the rest is `f64`.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or

@@ -17,7 +17,10 @@
 //!
 //! Minimal-coalition indices are not computed by this engine (they are
 //! `None`). Scratch: (n + 1) P counts for the table, 2 (cap + 1) for the
-//! division rows, n for pivots; 2n + 1 indices.
+//! division rows, n for pivots; 2n + 1 indices. A table of more than
+//! [`MAX_TABLE`] counts is refused ([`Error::EngineUnsuitable`]) before any
+//! work. Counts use the caller's checked [`Counter`]: overflow is
+//! [`Error::CountOverflow`]; sums are capped, so they cannot overflow.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or

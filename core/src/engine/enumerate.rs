@@ -3,7 +3,10 @@
 //! Time O(2^n * n * (atoms + nodes)); each step changes one member, so the
 //! per-attribute sums are updated in O(attributes). Scratch: 3 n^2 counts
 //! (pivots by size, swings by the number of swings in the coalition,
-//! minimal winning coalitions by size). Limited to n <= [`MAX_MEMBERS`].
+//! minimal winning coalitions by size). Limited to n <= [`MAX_MEMBERS`],
+//! which keeps 2^n and every table index in range. Counts use the caller's
+//! checked [`Counter`] (overflow is [`Error::CountOverflow`]); coalition sums
+//! stay below the checked attribute totals.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or

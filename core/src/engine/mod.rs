@@ -16,8 +16,8 @@
 //! here ([`need_for`], [`cost_for`], [`memory_for`], [`try_count_for`]) put
 //! one question to the engine an [`Engine`] names.
 //!
-//! Beside them (feature `alloc`): [`approx`] (Monte Carlo and normal
-//! approximations, every figure with its error bound) and [`ternary`]
+//! Beside them (feature `alloc`): `approx` (Monte Carlo and normal
+//! approximations, every figure with its error bound) and `ternary`
 //! (power under abstention and attendance).
 //!
 //! Import rule: the engines import the model (`crate::model`) and each

@@ -7,9 +7,12 @@
 //! rule O(T) times per profile: a 536-member two-chamber rule has 3 types
 //! and 88,000 profiles instead of 2^536 coalitions.
 //!
-//! Every index is exact, including the minimal-coalition ones. Scratch:
-//! Σ(c_t + 1) binomials, T + 1 running products and 3 T n counts;
-//! 3n + 1 indices (member order, type starts, the profile odometer).
+//! Every index is exact, including the minimal-coalition ones. Time
+//! O(Π(c_t + 1) * T * (atoms + nodes)), planned only up to [`MAX_TYPES`]
+//! types. Scratch: Σ(c_t + 1) binomials, T + 1 running products and 3 T n
+//! counts; 3n + 1 indices (member order, type starts, the profile
+//! odometer). Multiplicities and counts use the caller's checked
+//! [`Counter`]: overflow is [`Error::CountOverflow`].
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or

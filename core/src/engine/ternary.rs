@@ -19,8 +19,11 @@
 //!
 //! Both are computed over profiles of member types (identical weights in
 //! every used attribute): Π (c_t + 1)(c_t + 2)/2 profiles weighted by
-//! multinomial coefficients, O(T (atoms + nodes)) each. Counts are exact
-//! in the caller's [`Counter`]; the attendance probability is an `f64`.
+//! multinomial coefficients, O(T (atoms + nodes)) each, at most
+//! [`MAX_PROFILES`] profiles (else [`Error::TooCostly`] before any is
+//! visited); space O(n). Counts are exact in the caller's checked
+//! [`Counter`] (overflow is [`Error::CountOverflow`]); the attendance
+//! probability is an `f64`, summed in logarithms.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or

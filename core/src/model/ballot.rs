@@ -2,7 +2,8 @@
 //!
 //! A [`Ballot`] is three disjoint [`Coalition`]s; every member in none of
 //! them is absent. A two-state ballot is the special case with no
-//! abstentions and no absences. O(W) per operation, no heap.
+//! abstentions and no absences. O(W) per operation, no heap; member
+//! indices are checked like [`Coalition`]'s.
 
 use crate::model::coalition::Coalition;
 use crate::model::error::Error;

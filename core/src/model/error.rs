@@ -1,4 +1,6 @@
 //! The core's single error type: small, `Copy`, never boxed.
+//!
+//! Formatting is O(1) into the caller's formatter; no heap, no arithmetic.
 
 use core::fmt;
 

@@ -32,7 +32,7 @@ pub struct ImageInfo {
     pub stored_checksum: Option<u32>,
     /// The checksum computed over the declared image, when the data holds it.
     pub computed_checksum: Option<u32>,
-    /// `Ok` when the image passes every check [`load`] makes.
+    /// `Ok` when the image passes every check [`load`](super::load) makes.
     pub verdict: Result<(), ImageError>,
 }
 

@@ -1,5 +1,5 @@
 //! Rule images: a compact, versioned, little-endian binary form of one
-//! compiled [`Rule`], for devices that load a fixed rule from flash or a file.
+//! compiled [`Rule`](crate::Rule), for devices that load a fixed rule from flash or a file.
 //!
 //! * [`encode_into`] writes an image into a caller buffer of
 //!   [`encoded_len`] bytes; [`encode`] (feature `alloc`) returns a `Vec`.
