@@ -46,8 +46,16 @@ fn main() {
         power.plan.cost
     );
     println!(
-        "{:<12} {:>5} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8}  flags",
-        "member", "seats", "swings", "banzhaf", "penrose", "shapley", "johnst", "deegan", "holler"
+        "{:<12} {:>5} {:>6} {:>8} {:>8} {:>14} {:>8} {:>13} {:>11}  flags",
+        "member",
+        "seats",
+        "swings",
+        "banzhaf",
+        "penrose",
+        "shapley_shubik",
+        "johnston",
+        "deegan_packel",
+        "public_good"
     );
     for (i, name) in names.iter().enumerate() {
         let mut flags = Vec::new();
@@ -61,7 +69,7 @@ fn main() {
             flags.push("dictator");
         }
         println!(
-            "{:<12} {:>5} {:>8} {:>8.5} {:>8.5} {:>8.5} {:>8.5} {:>8.5} {:>8.5}  {}",
+            "{:<12} {:>5} {:>6} {:>8.5} {:>8.5} {:>14.5} {:>8.5} {:>13.5} {:>11.5}  {}",
             name,
             rule.weight(0, i),
             power.members[i].swings,

@@ -1,7 +1,16 @@
 //! # clout
 //!
 //! Exact voting power and decision rules for weighted, compound voting
-//! bodies. This facade re-exports the `no_std` core ([`clout_core`]).
+//! bodies: the library every front end (the `clout` command, the Python and
+//! WebAssembly packages) is built on. No argument parsing, no terminal code.
+//!
+//! * the `no_std` core ([`clout_core`], re-exported): rules, ballots,
+//!   engines, indices;
+//! * the rule language ([`language`], with [`compile`] at the root);
+//! * [`report`]: the power report as data (the JSON schema of every front end);
+//! * [`decision`]: one actual vote as data;
+//! * [`toolkit`]: the drafter's tools (simplify, compare, sweep, fit, ...);
+//! * [`scenarios`]: deterministic fictional bodies for benches, tests, demos.
 
 // The README's Rust examples run as doctests.
 #[cfg(doctest)]
@@ -10,6 +19,13 @@ struct ReadmeDoctests;
 
 pub use clout_core as core;
 pub use clout_core::*;
+pub use clout_dsl as language;
+pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 
+pub mod decision;
+mod failure;
+pub mod report;
 pub mod scenarios;
 pub mod toolkit;
+
+pub use failure::{Failure, FailureKind};

@@ -81,7 +81,7 @@ fn report_without_a_file_uses_the_demo() {
         .contains("governing instrument, applicable election law and certified counting procedures"));
     // The demo printed by `clout demo` is the file the report analysed.
     let demo = clout(&["demo"]);
-    assert_eq!(demo.stdout, include_str!("../examples/transit.clout"));
+    assert_eq!(demo.stdout, include_str!("../../examples/transit.clout"));
     let same = clout(&["report", "examples/transit.clout"]);
     assert_eq!(
         same.stdout.lines().skip(1).collect::<Vec<_>>(),
@@ -279,12 +279,14 @@ fn csv_has_a_header_and_one_row_per_member() {
     let lines: Vec<&str> = run.stdout.lines().collect();
     assert_eq!(
         lines[0],
-        "member,seats,swings,banzhaf,penrose,shapley_shubik,coleman_prevent,coleman_initiate,johnston,deegan_packel,public_good,dummy,veto,dictator"
+        "member,seats,swings,banzhaf,penrose,shapley_shubik,coleman_prevent,coleman_initiate,johnston,deegan_packel,public_good,dummy,veto,dictator,penrose_half_width,banzhaf_half_width,shapley_shubik_half_width"
     );
     assert_eq!(lines.len(), 10);
     assert!(lines[1].starts_with("north,3,121,"), "{}", lines[1]);
     assert!(lines[9].starts_with("hood6,1,15,"), "{}", lines[9]);
-    assert!(lines.iter().all(|l| l.split(',').count() == 14));
+    assert!(lines.iter().all(|l| l.split(',').count() == 17));
+    // Exact figures have no half-widths: the last three fields are empty.
+    assert!(lines[1].ends_with(",,,"), "{}", lines[1]);
 }
 
 #[test]
@@ -487,7 +489,8 @@ fn work_over_the_budget_is_refused_at_once() {
     let run = clout_with_input(&["report", "-", "--format", "csv", "--budget", "1"], small);
     assert_eq!(run.code, 0, "{}", run.stderr);
     assert!(
-        run.stdout.starts_with("member,penrose,penrose_half_width"),
+        run.stdout
+            .starts_with("member,swings,banzhaf,penrose,shapley_shubik,"),
         "{}",
         &run.stdout[..80.min(run.stdout.len())]
     );

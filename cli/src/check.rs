@@ -6,9 +6,9 @@ use std::fmt::Write;
 
 use clout_dsl::{lint, render_all, Severity};
 
-use super::input::Input;
-use super::progress::with_progress;
-use super::{CheckArgs, Failure, Outcome};
+use crate::input::Input;
+use crate::progress::with_progress;
+use crate::{CheckArgs, Failure, Outcome};
 
 pub fn run(args: &CheckArgs) -> Outcome {
     let mut outcome = Outcome {

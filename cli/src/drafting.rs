@@ -6,10 +6,10 @@ use clout::toolkit::{self, PROFILE_LIMIT};
 use clout_dsl::exact::{self, Power};
 use clout_dsl::{CompiledRule, RuleFile};
 
-use super::input::Input;
-use super::progress::with_progress;
-use super::text;
-use super::Failure;
+use crate::input::Input;
+use crate::progress::with_progress;
+use crate::text;
+use crate::Failure;
 
 /// Default work budget of one exact analysis (about a minute).
 pub const BUDGET: u128 = 50_000_000_000;

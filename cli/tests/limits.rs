@@ -320,7 +320,7 @@ fn the_command_line_keeps_a_forced_engine_to_the_budget() {
             "--budget",
             "10",
         ])
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
         .output()
         .expect("the clout binary runs");
     let stderr = String::from_utf8_lossy(&out.stderr);

@@ -11,10 +11,10 @@ use clout::toolkit::profile::ProfileTable;
 use clout::toolkit::PROFILE_LIMIT;
 use clout_dsl::RuleFile;
 
-use super::drafting::{self, label, names};
-use super::input::Input;
-use super::report::CAUTION;
-use super::{Failure, Outcome, Source};
+use crate::drafting::{self, label, names};
+use crate::input::Input;
+use crate::report::CAUTION;
+use crate::{Failure, Outcome, Source};
 
 #[derive(Args)]
 pub struct OrderArgs {

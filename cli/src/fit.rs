@@ -11,11 +11,11 @@ use clap::Args;
 use clout::toolkit::fit::{self, Options};
 use clout::Rule;
 
-use super::drafting;
-use super::input::Input;
-use super::report::{CAUTION, MODEL};
-use super::text::{Align, Table};
-use super::{Failure, Outcome};
+use crate::drafting;
+use crate::input::Input;
+use crate::report::{CAUTION, MODEL};
+use crate::text::{Align, Table};
+use crate::{Failure, Outcome};
 
 /// Search steps per second of `--seconds`: measured on the project's 2-core
 /// machine (release build, one core: 1.6e9 steps of a 14-member fit in 6.5 s).

@@ -15,7 +15,7 @@ pub struct Run {
 pub fn clout_with_input(args: &[&str], stdin: &str) -> Run {
     let mut child = Command::new(env!("CARGO_BIN_EXE_clout"))
         .args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
         .stderr(Stdio::piped())

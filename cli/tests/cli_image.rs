@@ -24,7 +24,9 @@ fn examples_compile_to_images_that_decide_alike() {
         "token-dao",
     ] {
         let src_path = format!("examples/{example}.clout");
-        let source = std::fs::read_to_string(&src_path).expect("example");
+        let source =
+            std::fs::read_to_string(format!(concat!(env!("CARGO_MANIFEST_DIR"), "/../{}"), src_path))
+                .expect("example");
         let file = clout_dsl::compile(&source).expect("example compiles");
         for rule in &file.rules {
             let out = tmp(&format!("{example}-{}.img", rule.name));

@@ -15,10 +15,10 @@ use clout::toolkit::profile;
 use clout::toolkit::weighted::{self, Level, Minimality, Representation, TradingTransfer, Verdict};
 use clout_dsl::{CompiledRule, RuleFile};
 
-use super::drafting::{self, names, thousands};
-use super::input::Input;
-use super::report::CAUTION;
-use super::{parse_steps, Failure, Outcome, Source};
+use crate::drafting::{self, names, thousands};
+use crate::input::Input;
+use crate::report::CAUTION;
+use crate::{parse_steps, Failure, Outcome, Source};
 
 #[derive(Args)]
 pub struct SimplifyArgs {
@@ -216,12 +216,12 @@ fn cross_check(rule: &CompiledRule, r: &Representation, budget: u128) -> Result<
         )));
     }
     let minimal = match &a.minimal_winning {
-        Some(m) => format!(", {} minimal winning", super::text::count(m)),
+        Some(m) => format!(", {} minimal winning", crate::text::count(m)),
         None => String::new(),
     };
     Ok(format!(
         "the exact engines agree ({} winning coalitions{minimal}, the same swing count for every member).",
-        super::text::count(&a.winning)
+        crate::text::count(&a.winning)
     ))
 }
 

@@ -10,8 +10,8 @@ use std::path::{Path, PathBuf};
 
 use clout::image;
 
-use super::input::Input;
-use super::{CompileArgs, Failure, InspectArgs, Outcome};
+use crate::input::Input;
+use crate::{CompileArgs, Failure, InspectArgs, Outcome};
 
 pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
     let s = &args.source;

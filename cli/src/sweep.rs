@@ -11,11 +11,11 @@ use clout::toolkit::chart::{self, Chart, Panel, Series};
 use clout::toolkit::sweep::{self, Level, Point};
 use clout_dsl::{AttributeKind, CompiledRule};
 
-use super::drafting::{self, label, names};
-use super::input::Input;
-use super::report::{CAUTION, MODEL};
-use super::text::{Align, Table};
-use super::{parse_steps, Failure, Outcome, Source};
+use crate::drafting::{self, label, names};
+use crate::input::Input;
+use crate::report::{CAUTION, MODEL};
+use crate::text::{Align, Table};
+use crate::{parse_steps, Failure, Outcome, Source};
 
 /// Most points of one sweep.
 const MAX_POINTS: usize = 201;

@@ -24,7 +24,7 @@ fn fails(args: &[&str], message: &str) {
 }
 
 fn examples() -> Vec<String> {
-    let mut files: Vec<String> = std::fs::read_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/examples"))
+    let mut files: Vec<String> = std::fs::read_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/../examples"))
         .unwrap()
         .filter_map(|e| {
             let name = e.ok()?.file_name().into_string().ok()?;

@@ -12,7 +12,8 @@ use std::process::Command;
 /// `clout ARGS` with `CLOUT_THREADS` set (or unset), its standard output.
 fn report(args: &[&str], threads: Option<usize>) -> String {
     let mut cmd = Command::new(env!("CARGO_BIN_EXE_clout"));
-    cmd.args(args).current_dir(env!("CARGO_MANIFEST_DIR"));
+    cmd.args(args)
+        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."));
     match threads {
         Some(n) => cmd.env("CLOUT_THREADS", n.to_string()),
         None => cmd.env_remove("CLOUT_THREADS"),
@@ -78,7 +79,7 @@ fn the_thread_count_reaches_the_sampler() {
     let args = approximate("examples/council.clout");
     let mut cmd = Command::new(env!("CARGO_BIN_EXE_clout"));
     cmd.args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
         .env("CLOUT_THREADS", "lots");
     let out = cmd.output().expect("runs");
     assert!(out.status.success());

@@ -15,7 +15,7 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
-#[path = "../fuzz/src/targets/mod.rs"]
+#[path = "../../fuzz/src/targets/mod.rs"]
 #[allow(dead_code)]
 mod targets;
 
@@ -43,7 +43,7 @@ fn run(args: &[&str]) -> Run {
 fn run_within(args: &[&str], deadline: Duration) -> Run {
     let mut child = Command::new(env!("CARGO_BIN_EXE_clout"))
         .args(args)
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
         .stdin(Stdio::null())
         .stdout(Stdio::null())
         .stderr(Stdio::piped())
@@ -421,7 +421,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
 ];
 
 fn hostile_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/hostile")
+    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/..")).join("tests/hostile")
 }
 
 #[test]
@@ -538,7 +538,9 @@ fn floods_of_errors_and_long_chains_are_refused_quickly() {
 }
 
 fn replay(dir: &str) {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fuzz").join(dir);
+    let root = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
+        .join("fuzz")
+        .join(dir);
     let mut ran = 0;
     for t in targets::TARGETS {
         let Ok(entries) = std::fs::read_dir(root.join(t.name)) else {

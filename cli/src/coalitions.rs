@@ -12,11 +12,11 @@ use clout::toolkit::profile::ProfileTable;
 use clout::toolkit::PROFILE_LIMIT;
 use clout_dsl::RuleFile;
 
-use super::drafting::{self, label, names};
-use super::input::Input;
-use super::report::CAUTION;
-use super::text::{self, Align, Table};
-use super::{Failure, Outcome, Source};
+use crate::drafting::{self, label, names};
+use crate::input::Input;
+use crate::report::CAUTION;
+use crate::text::{self, Align, Table};
+use crate::{Failure, Outcome, Source};
 
 #[derive(Args)]
 #[command(group(ArgGroup::new("kind").required(true).args(["minimal_winning", "minimal_blocking"])))]

@@ -2,7 +2,7 @@
 //! printed as a rule file, piped to `clout report - --format json`, and
 //! compared with `clout_core::analyze` on the rule itself.
 
-#[path = "../dsl/tests/support/mod.rs"]
+#[path = "../../dsl/tests/support/mod.rs"]
 mod support;
 
 mod cli_support;

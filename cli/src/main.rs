@@ -1,4 +1,6 @@
-//! The `clout` command line: argument parsing, exit codes and output.
+//! The `clout` command: exact power reports, single votes, checks and
+//! drafting tools for rule files written in the clout rule language;
+//! argument parsing, exit codes and output.
 //!
 //! Exit codes: 0 success; 1 warnings (`check` only); 2 bad input of any
 //! kind (unreadable file, a rule that does not compile, an unknown name, a
@@ -7,7 +9,6 @@
 
 mod check;
 mod decide;
-mod estimate;
 mod image;
 mod input;
 mod progress;
@@ -272,6 +273,12 @@ impl Failure {
     }
 }
 
+impl From<clout::Failure> for Failure {
+    fn from(f: clout::Failure) -> Self {
+        Failure::input(f.to_string())
+    }
+}
+
 /// What a command produced: stdout text, stderr text and the exit code.
 pub struct Outcome {
     stdout: String,
@@ -290,7 +297,7 @@ impl Outcome {
 }
 
 /// Parses the arguments, runs the command and returns its exit code.
-pub fn main() -> ExitCode {
+fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(c) => c,
         Err(e) => {

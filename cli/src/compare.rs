@@ -13,11 +13,11 @@ use clout::toolkit::compare::{self, Equivalence};
 use clout_dsl::exact::Power;
 use clout_dsl::CompiledRule;
 
-use super::drafting::{self, label, names};
-use super::input::Input;
-use super::report::{CAUTION, MODEL};
-use super::text::{Align, Table};
-use super::{parse_steps, Failure, Outcome};
+use crate::drafting::{self, label, names};
+use crate::input::Input;
+use crate::report::{CAUTION, MODEL};
+use crate::text::{Align, Table};
+use crate::{parse_steps, Failure, Outcome};
 
 #[derive(Args)]
 pub struct CompareArgs {

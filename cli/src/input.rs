@@ -7,7 +7,7 @@ use clout_dsl::diagnostic::closest;
 use clout_dsl::syntax::{decode, MAX_SOURCE_LEN};
 use clout_dsl::{compile, render_all, CompiledRule, RuleFile};
 
-use super::Failure;
+use crate::Failure;
 
 /// The demo rule file analysed by `clout report` without arguments.
 pub const DEMO: &str = include_str!("../../examples/transit.clout");
