@@ -281,7 +281,21 @@ fn count_single<W: AsRef<[u64]>, C: Counter>(
     for (filled, i) in (0..n).enumerate() {
         let w = rule.weight(attr, i) as usize;
         if sizes {
-            multiply(table, p, filled, |s| (s + w).min(cap))?;
+            // The same product as `multiply`, written out: through the shared
+            // function this path ran about 4% more instructions (callgrind,
+            // 60 members, Count1024), the compiler laying out the division
+            // loop below differently.
+            for k in (0..=filled).rev() {
+                let (low, high) = table.split_at_mut((k + 1) * p);
+                let row = &low[k * p..];
+                let next = &mut high[..p];
+                for (s, &c) in row.iter().enumerate() {
+                    if !c.is_zero() {
+                        let t = (s + w).min(cap);
+                        next[t] = next[t].add(c)?;
+                    }
+                }
+            }
         } else {
             // In place: every target index is at or above its source, so a
             // descending sweep reads only values not yet updated. The cap

@@ -71,16 +71,19 @@ impl<'a> Types<'a> {
     }
 
     /// Members of type `t`.
+    #[inline]
     pub fn size(&self, t: usize) -> usize {
         (self.starts[t + 1] - self.starts[t]) as usize
     }
 
     /// The first member of type `t`, whose weights stand for the type's.
+    #[inline]
     pub fn representative(&self, t: usize) -> usize {
         self.order[self.starts[t] as usize] as usize
     }
 
     /// The members of type `t`.
+    #[inline]
     pub fn members(&self, t: usize) -> &'a [u32] {
         &self.order[self.starts[t] as usize..self.starts[t + 1] as usize]
     }
