@@ -19,6 +19,9 @@ pub enum FailureKind {
     Limit,
     /// A forced engine or method cannot handle the rule.
     Unsuitable,
+    /// The caller stopped the computation between two of its steps (Ctrl-C
+    /// in the Python package).
+    Interrupted,
 }
 
 /// A refused call: its kind, a message and an optional hint.

@@ -9,7 +9,9 @@
 //! * the rule language ([`language`], with [`compile`] at the root);
 //! * [`report`]: the power report as data (the JSON schema of every front end);
 //! * [`decision`]: one actual vote as data;
-//! * [`toolkit`]: the drafter's tools (simplify, compare, sweep, fit, ...);
+//! * [`drafting`]: the drafter's answers as data (simplify, compare, sweep,
+//!   coalitions, order, fit), the JSON schema of the drafting commands;
+//! * [`toolkit`]: the drafter's methods behind them;
 //! * [`scenarios`]: deterministic fictional bodies for benches, tests, demos.
 
 // The README's Rust examples run as doctests.
@@ -23,6 +25,7 @@ pub use clout_dsl as language;
 pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 
 pub mod decision;
+pub mod drafting;
 mod failure;
 pub mod report;
 pub mod scenarios;

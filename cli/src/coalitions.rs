@@ -7,14 +7,13 @@
 use std::fmt::Write;
 
 use clap::{ArgGroup, Args};
-use clout::toolkit::coalitions::{self, Kind};
-use clout::toolkit::profile::ProfileTable;
-use clout::toolkit::PROFILE_LIMIT;
+use clout::drafting::{self as answers, CoalitionKind, CoalitionOptions, Pattern};
 use clout_dsl::RuleFile;
 
-use crate::drafting::{self, label, names};
+use crate::drafting::{self, label, names, Format};
 use crate::input::Input;
-use crate::report::CAUTION;
+use crate::progress::Progress;
+use crate::report::{json, CAUTION};
 use crate::text::{self, Align, Table};
 use crate::{Failure, Outcome, Source};
 
@@ -35,6 +34,9 @@ pub struct CoalitionsArgs {
     /// List every coalition of each pattern of interchangeable members.
     #[arg(long)]
     each: bool,
+    /// Output format (JSON: `clout::drafting::Coalitions`, both lists up to --limit; keys in the README).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    format: Format,
 }
 
 pub fn run(args: &CoalitionsArgs) -> Result<Outcome, Failure> {
@@ -44,74 +46,69 @@ pub fn run(args: &CoalitionsArgs) -> Result<Outcome, Failure> {
     let file = &input.file;
     let (kind, what, meaning) = if args.minimal_winning {
         (
-            Kind::MinimalWinning,
+            CoalitionKind::MinimalWinning,
             "minimal winning coalitions",
             "each passes, and fails without any one of its members",
         )
     } else {
         (
-            Kind::MinimalBlocking,
+            CoalitionKind::MinimalBlocking,
             "minimal blocking coalitions",
             "each, voting no, defeats the motion whatever the others do, and none of its \
              members can be spared",
         )
     };
-    let table = ProfileTable::of_rule(&rule.rule, drafting::groups(rule), PROFILE_LIMIT)
-        .map_err(|e| drafting::failure(&rule.name, e))?;
-    let listing = coalitions::list(&table, kind).map_err(|e| drafting::failure(&rule.name, e))?;
+    let options = CoalitionOptions {
+        kind,
+        limit: args.limit,
+    };
+    let listing = answers::coalitions(file, rule, &options, &mut Progress)?;
+    if args.format == Format::Json {
+        return Ok(Outcome::ok(json(&listing)));
+    }
     let heading = format!("{}{}", what[..1].to_uppercase(), &what[1..]);
     let mut out = drafting::heading(&heading, &input, rule);
     // Patterns read better than lists once a group has three or more members.
-    let grouped = table.types().iter().any(|t| t.len() > 2);
-    let total = text::count(&listing.total);
-    let mut shown = 0;
+    let grouped = drafting::groups(rule).iter().any(|t| t.len() > 2);
+    let total = text::count(&listing.count);
     let patterns_mode = grouped && !args.each;
-    let mut table_out;
-    if patterns_mode {
+    let (table_out, complete) = if patterns_mode {
         let _ = writeln!(
             out,
             "{} {what} in {} patterns of interchangeable members;\n{meaning}:",
             total,
-            drafting::thousands(listing.patterns.len())
+            drafting::thousands(listing.pattern_count)
         );
-        table_out = Table::new(vec![
+        let mut t = Table::new(vec![
             ("members".to_string(), Align::Right),
             ("coalitions".to_string(), Align::Right),
             ("pattern".to_string(), Align::Left),
         ]);
-        for p in listing.patterns.iter().take(args.limit) {
-            let count = table
-                .coalitions_with(p)
-                .map_err(|e| drafting::failure(&rule.name, e))?;
-            table_out.push(vec![
-                drafting::thousands(table.head_count(p)),
-                text::count(&count),
-                pattern(file, &table, p),
+        for p in &listing.patterns {
+            t.push(vec![
+                drafting::thousands(p.size),
+                text::count(&p.count),
+                pattern(file, p),
             ]);
-            shown += 1;
         }
+        (t, listing.patterns.len() == listing.pattern_count)
     } else {
         let _ = writeln!(out, "{total} {what};\n{meaning}:");
-        table_out = Table::new(vec![
+        let mut t = Table::new(vec![
             ("members".to_string(), Align::Right),
             ("coalition".to_string(), Align::Left),
         ]);
-        'all: for p in &listing.patterns {
-            for c in coalitions::expand(&table, p, args.limit - shown) {
-                if shown == args.limit {
-                    break 'all;
-                }
-                table_out.push(vec![drafting::thousands(c.len()), names(file, &c)]);
-                shown += 1;
-            }
+        for c in &listing.coalitions {
+            t.push(vec![drafting::thousands(c.len()), names(file, &c.indices)]);
         }
-    }
-    out.push_str(&indent(&table_out.render()));
-    let complete = if patterns_mode {
-        shown == listing.patterns.len()
-    } else {
-        shown.to_string() == listing.total
+        (t, listing.coalitions.len().to_string() == listing.count)
     };
+    let shown = if patterns_mode {
+        listing.patterns.len()
+    } else {
+        listing.coalitions.len()
+    };
+    out.push_str(&indent(&table_out.render()));
     if !complete {
         let _ = writeln!(
             out,
@@ -119,28 +116,24 @@ pub fn run(args: &CoalitionsArgs) -> Result<Outcome, Failure> {
             drafting::thousands(shown)
         );
     }
-    if text::is_rounded(&listing.total) {
-        let _ = writeln!(out, "≈ marks a rounded count; exactly {}.", listing.total);
+    if text::is_rounded(&listing.count) {
+        let _ = writeln!(out, "≈ marks a rounded count; exactly {}.", listing.count);
     }
     let _ = writeln!(out, "\n{CAUTION}");
     Ok(Outcome::ok(out))
 }
 
 /// "executive, 218 of rep1..rep435, all 3 of north, river, orchard".
-fn pattern(file: &RuleFile, table: &ProfileTable, digits: &[usize]) -> String {
-    let mut parts = Vec::new();
-    for (t, &d) in digits.iter().enumerate() {
-        let members = &table.types()[t];
-        if d == 0 {
-            continue;
-        }
-        let part = match (members.len(), d) {
-            (1, _) => names(file, members),
-            (c, d) if c == d => format!("all {c} of {}", label(file, members)),
-            (_, d) => format!("{} of {}", drafting::thousands(d), label(file, members)),
-        };
-        parts.push(part);
-    }
+fn pattern(file: &RuleFile, p: &Pattern) -> String {
+    let parts: Vec<String> = p
+        .parts
+        .iter()
+        .map(|part| match (part.of.len(), part.take) {
+            (1, _) => names(file, &part.of.indices),
+            (c, d) if c == d => format!("all {c} of {}", label(file, &part.of.indices)),
+            (_, d) => format!("{} of {}", drafting::thousands(d), label(file, &part.of.indices)),
+        })
+        .collect();
     if parts.is_empty() {
         "nobody (the empty coalition)".to_string()
     } else {

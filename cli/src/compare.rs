@@ -9,13 +9,13 @@ use std::fmt::Write;
 use std::path::Path;
 
 use clap::{Args, ValueEnum};
-use clout::toolkit::compare::{self, Equivalence};
-use clout_dsl::exact::Power;
+use clout::drafting::{self as answers, CompareOptions, Comparison, Verdict};
 use clout_dsl::CompiledRule;
 
-use crate::drafting::{self, label, names};
+use crate::drafting::{self, label, names, Format};
 use crate::input::Input;
-use crate::report::{CAUTION, MODEL};
+use crate::progress::Progress;
+use crate::report::{json, CAUTION, MODEL};
 use crate::text::{Align, Table};
 use crate::{parse_steps, Failure, Outcome};
 
@@ -38,6 +38,9 @@ pub struct CompareArgs {
     /// Most elementary steps each exact analysis of the indices may take.
     #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
     budget: u128,
+    /// Output format (JSON: `clout::drafting::Comparison`, keys in the README).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    format: Format,
 }
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -65,14 +68,25 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
     let ib = load(&args.b)?;
     let ra = ia.rule(args.rule_a.as_deref())?;
     let rb = ib.rule(args.rule_b.as_deref())?;
-    let (order, how) = matching(&ia, &ib, args.by)?;
-    let b = compare::reorder(&rb.rule, &order).map_err(|e| drafting::failure(&rb.name, e))?;
-    let answer = compare::compare(&ra.rule, &b).map_err(|e| drafting::failure(&ra.name, e))?;
-    let file = &ia.file;
+    let options = CompareOptions {
+        by: args.by.map(|m| match m {
+            Matching::Name => answers::Matching::Name,
+            Matching::Position => answers::Matching::Position,
+        }),
+        budget: args.budget,
+    };
+    let answer = answers::compare(&ia.file, ra, &ib.file, rb, &options, &mut Progress)?;
+    if args.format == Format::Json {
+        return Ok(Outcome::ok(json(&answer)));
+    }
     let n = ra.rule.members();
     let mut out = String::from("Compare two rules\n");
     let _ = writeln!(out, "  A: {}, rule `{}`: {}", ia.name, ra.name, ra.text);
     let _ = writeln!(out, "  B: {}, rule `{}`: {}", ib.name, rb.name, rb.text);
+    let how = match answer.matched_by {
+        answers::Matching::Name => "Members matched by name",
+        answers::Matching::Position => "Members matched by position",
+    };
     let _ = writeln!(
         out,
         "  {how} ({} members; names below are A's).\n",
@@ -83,14 +97,14 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
             out.push_str(&note);
         }
     }
-    match answer {
-        Equivalence::Same { profiles } => {
-            let checked = if profiles as u128 == 1u128 << n.min(127) {
+    match (&answer.witness, answer.sampled) {
+        (None, None) => {
+            let checked = if answer.patterns_are_coalitions {
                 format!("all {} coalitions", drafting::coalitions(n))
             } else {
                 format!(
                     "all {} patterns of members interchangeable in both, so on all {} coalitions",
-                    drafting::thousands(profiles),
+                    drafting::thousands(answer.patterns),
                     drafting::coalitions(n)
                 )
             };
@@ -100,13 +114,9 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
                  Every power index is therefore the same under both."
             );
         }
-        Equivalence::Different {
-            coalition,
-            first_passes,
-            smallest,
-        } => {
-            let size = coalition.len();
-            let which = if smallest {
+        (Some(w), _) => {
+            let size = w.coalition.len();
+            let which = if w.smallest {
                 format!(
                     "A smallest coalition on which they differ ({} member{}; none smaller differs)",
                     drafting::thousands(size),
@@ -116,40 +126,30 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
                 "A coalition on which they differ (found by sampling; no member can be dropped from it)"
                     .to_string()
             };
-            let (yes, no) = if first_passes { ("A", "B") } else { ("B", "A") };
-            let who = if coalition.is_empty() {
+            let (yes, no) = if w.passes == "a" { ("A", "B") } else { ("B", "A") };
+            let who = if w.coalition.is_empty() {
                 "nobody (every member votes no)".to_string()
             } else {
-                names(file, &coalition)
+                names(&ia.file, &w.coalition.indices)
             };
             let _ = writeln!(
                 out,
                 "Different rules. {which}:\n  {who}\n  voting yes (the others no): {yes} passes, {no} fails.\n"
             );
-            let pa = drafting::power_of(&ra.rule, &ra.name, args.budget)?;
-            let pb = drafting::power_of(&b, &rb.name, args.budget)?;
-            changes(&mut out, &ia, ra, &b, &pa, &pb);
+            changes(&mut out, &ia, ra, rb, &answer)?;
         }
-        Equivalence::Undecided { profiles, sampled } => {
-            let pa = drafting::power_of(&ra.rule, &ra.name, args.budget)?;
-            let pb = drafting::power_of(&b, &rb.name, args.budget)?;
-            let differ = pa.winning != pb.winning
-                || pa
-                    .members
-                    .iter()
-                    .zip(&pb.members)
-                    .any(|(x, y)| x.swings != y.swings);
+        (None, Some(sampled)) => {
             let _ = writeln!(
                 out,
                 "Too many distinct members to compare every coalition ({} patterns; limit {}), and no\n\
                  difference among {} random coalitions.",
-                drafting::thousands(profiles),
+                drafting::thousands(answer.patterns),
                 drafting::thousands(clout::toolkit::PROFILE_LIMIT),
                 drafting::thousands(sampled)
             );
-            if differ {
+            if answer.verdict == Verdict::Different {
                 let _ = writeln!(out, "Different rules all the same: their exact counts differ.\n");
-                changes(&mut out, &ia, ra, &b, &pa, &pb);
+                changes(&mut out, &ia, ra, rb, &answer)?;
             } else {
                 let _ = writeln!(
                     out,
@@ -161,42 +161,6 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
     }
     let _ = writeln!(out, "\n{CAUTION}");
     Ok(Outcome::ok(out))
-}
-
-/// `order[i]`: B's member matched to A's member i, and how.
-fn matching(a: &Input, b: &Input, by: Option<Matching>) -> Result<(Vec<usize>, &'static str), Failure> {
-    let na: Vec<&str> = a.file.members.iter().map(|m| m.name.as_str()).collect();
-    let nb: Vec<&str> = b.file.members.iter().map(|m| m.name.as_str()).collect();
-    let by_name: Option<Vec<usize>> = na.iter().map(|x| nb.iter().position(|y| y == x)).collect();
-    let by_name = by_name.filter(|_| na.len() == nb.len());
-    match (by, by_name) {
-        (Some(Matching::Name), None) => {
-            let only_a: Vec<&str> = na.iter().filter(|x| !nb.contains(x)).copied().take(8).collect();
-            let only_b: Vec<&str> = nb.iter().filter(|x| !na.contains(x)).copied().take(8).collect();
-            Err(Failure::input(format!(
-                "the rules name different members (only in A: {}; only in B: {})\n  = hint: match them by position with --by position",
-                list_or_none(&only_a),
-                list_or_none(&only_b)
-            )))
-        }
-        (Some(Matching::Name) | None, Some(order)) => Ok((order, "Members matched by name")),
-        (Some(Matching::Position) | None, _) if na.len() == nb.len() => {
-            Ok(((0..na.len()).collect(), "Members matched by position"))
-        }
-        _ => Err(Failure::input(format!(
-            "A has {} members and B has {}: they cannot be matched\n  = hint: compare rules over the same members",
-            na.len(),
-            nb.len()
-        ))),
-    }
-}
-
-fn list_or_none(names: &[&str]) -> String {
-    if names.is_empty() {
-        "none".to_string()
-    } else {
-        names.join(", ")
-    }
 }
 
 fn signed(v: f64) -> String {
@@ -213,15 +177,23 @@ fn changes(
     out: &mut String,
     input: &Input,
     a: &CompiledRule,
-    b: &clout::Rule<Vec<u64>>,
-    pa: &Power,
-    pb: &Power,
-) {
+    rb: &CompiledRule,
+    answer: &Comparison,
+) -> Result<(), Failure> {
+    let (Some(members), Some(pa), Some(pb)) = (
+        &answer.members,
+        answer.passage_probability_a,
+        answer.passage_probability_b,
+    ) else {
+        return Ok(());
+    };
+    let b = clout::toolkit::compare::reorder(&rb.rule, &answer.order)
+        .map_err(|e| answers::toolkit_failure(&rb.name, e))?;
     let n = a.rule.members();
     let groups = clout::toolkit::profile::group_by_key(n, |i| {
         let col =
             |r: &clout::Rule<Vec<u64>>| (0..r.attributes()).map(|x| r.weight(x, i)).collect::<Vec<u64>>();
-        (col(&a.rule), col(b))
+        (col(&a.rule), col(&b))
     });
     let grouped = groups.iter().any(|g| g.len() > 1);
     let mut t = Table::new(
@@ -239,15 +211,15 @@ fn changes(
         .collect(),
     );
     for g in &groups {
-        let (x, y) = (&pa.members[g[0]], &pb.members[g[0]]);
+        let m = &members[g[0]];
         t.push(vec![
             label(&input.file, g),
-            format!("{:.6}", x.banzhaf),
-            format!("{:.6}", y.banzhaf),
-            signed(y.banzhaf - x.banzhaf),
-            format!("{:.6}", x.shapley_shubik),
-            format!("{:.6}", y.shapley_shubik),
-            signed(y.shapley_shubik - x.shapley_shubik),
+            format!("{:.6}", m.banzhaf_a),
+            format!("{:.6}", m.banzhaf_b),
+            signed(m.banzhaf_b - m.banzhaf_a),
+            format!("{:.6}", m.shapley_shubik_a),
+            format!("{:.6}", m.shapley_shubik_b),
+            signed(m.shapley_shubik_b - m.shapley_shubik_a),
         ]);
     }
     let _ = writeln!(out, "Power under A and under B (change = B - A):");
@@ -261,7 +233,8 @@ fn changes(
     let _ = writeln!(
         out,
         "  Probability of passage: A {}, B {}.\n\n{MODEL}",
-        drafting::probability(pa.passage_probability),
-        drafting::probability(pb.passage_probability)
+        drafting::probability(pa),
+        drafting::probability(pb)
     );
+    Ok(())
 }

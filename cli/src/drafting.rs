@@ -1,18 +1,14 @@
 //! What the drafting commands (`simplify`, `order`, `compare`, `sweep`,
 //! `fit`, `coalitions`) share: headings, member names, groups of
-//! interchangeable members, exact analyses and error messages.
+//! interchangeable members, number formats. The answers themselves come
+//! from `clout::drafting`.
 
-use clout::toolkit::{self, PROFILE_LIMIT};
-use clout_dsl::exact::{self, Power};
+use clap::ValueEnum;
+use clout::toolkit;
 use clout_dsl::{CompiledRule, RuleFile};
 
 use crate::input::Input;
-use crate::progress::with_progress;
 use crate::text;
-use crate::Failure;
-
-/// Default work budget of one exact analysis (about a minute).
-pub const BUDGET: u128 = 50_000_000_000;
 
 /// `KIND: TITLE, rule `NAME`` and the rule's text, then a blank line.
 pub fn heading(kind: &str, input: &Input, rule: &CompiledRule) -> String {
@@ -83,52 +79,6 @@ pub fn groups(rule: &CompiledRule) -> Vec<Vec<usize>> {
     toolkit::profile::interchangeable(&rule.rule)
 }
 
-/// An exact analysis of a core rule, with a progress line.
-pub fn power_of(rule: &clout::Rule<Vec<u64>>, name: &str, budget: u128) -> Result<Power, Failure> {
-    let plan = exact::choose(rule, budget).map_err(|e| core_failure(name, e))?;
-    let label = format!(
-        "counting exactly: rule `{name}`, {} engine, about {:.1e} steps",
-        plan.engine.name(),
-        plan.cost as f64
-    );
-    with_progress(&label, || exact::power(rule, plan.engine)).map_err(|e| core_failure(name, e))
-}
-
-fn core_failure(name: &str, err: clout::Error) -> Failure {
-    let hint = match err {
-        clout::Error::TooCostly { .. } => {
-            "\n  = hint: raise the limit with --budget STEPS; members with identical weights \
-             (`members NAME xK`) make exact counting much cheaper"
-        }
-        _ => "",
-    };
-    Failure::input(format!("rule `{name}`: {err}{hint}"))
-}
-
-/// A toolkit failure as a message on the rule, with a hint.
-pub fn failure(name: &str, err: toolkit::Error) -> Failure {
-    match err {
-        toolkit::Error::TooLarge { profiles, limit } => {
-            let shown = if profiles == u128::MAX {
-                "more than 10^38".to_string()
-            } else {
-                text::thousands(&profiles.to_string())
-            };
-            Failure::input(format!(
-                "rule `{name}` is too large for the exact test: it would visit {shown} patterns of \
-                 interchangeable members, over the limit of {}\n  = hint: the test visits every \
-                 pattern (how many of each group of members with identical weights vote yes); \
-                 rules whose members fall into a few such groups are cheap, while {} or more \
-                 members with distinct weights are too many",
-                text::thousands(&limit.to_string()),
-                PROFILE_LIMIT.trailing_zeros() + 1
-            ))
-        }
-        toolkit::Error::Core(e) => core_failure(name, e),
-        other => Failure::input(format!("rule `{name}`: {other}")),
-    }
-}
-
 /// `n` with thousands separators.
 pub fn thousands(n: impl ToString) -> String {
     text::thousands(&n.to_string())
@@ -151,4 +101,11 @@ pub fn probability(p: f64) -> String {
     } else {
         format!("{p:.6}")
     }
+}
+
+/// Output format of the drafting commands.
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    Text,
+    Json,
 }

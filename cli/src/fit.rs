@@ -8,19 +8,14 @@ use std::fmt::Write;
 use std::path::{Path, PathBuf};
 
 use clap::Args;
-use clout::toolkit::fit::{self, Options};
-use clout::Rule;
+use clout::drafting::{self as answers, FitOptions, BUDGET};
 
-use crate::drafting;
+use crate::drafting::{self, Format};
 use crate::input::Input;
-use crate::report::{CAUTION, MODEL};
+use crate::progress::Progress;
+use crate::report::{json, CAUTION, MODEL};
 use crate::text::{Align, Table};
 use crate::{Failure, Outcome};
-
-/// Search steps per second of `--seconds`: measured on the project's 2-core
-/// machine (release build, one core: 1.6e9 steps of a 14-member fit in 6.5 s).
-/// Slower machines take longer for the same answer.
-const STEPS_PER_SECOND: f64 = 2.5e8;
 
 #[derive(Args)]
 pub struct FitArgs {
@@ -41,6 +36,9 @@ pub struct FitArgs {
     /// Largest total weight tried.
     #[arg(long, value_name = "W", default_value_t = 10_000)]
     max_total: u64,
+    /// Output format (JSON: `clout::drafting::Fit`, keys in the README).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    format: Format,
 }
 
 /// Where the targets came from.
@@ -65,35 +63,25 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
         )));
     }
     let t = targets(args)?;
-    if t.names.len() > fit::MAX_MEMBERS {
-        return Err(Failure::input(format!(
-            "{}: {} members, more than the fit handles ({})\n  = hint: the search counts swings \
-             exactly in 128-bit integers, which bounds it to {} members",
-            t.from,
-            t.names.len(),
-            fit::MAX_MEMBERS,
-            fit::MAX_MEMBERS
-        )));
+    let goal = answers::Targets {
+        names: t.names.clone(),
+        values: t.values.clone(),
+        populations: matches!(t.source, Source::Populations),
+    };
+    let options = FitOptions {
+        seconds: args.seconds,
+        max_total: args.max_total,
+    };
+    let found = answers::fit(&goal, &options, &mut Progress).map_err(|f| {
+        Failure::from(clout::Failure {
+            message: format!("{}: {}", t.from, f.message),
+            ..f
+        })
+    })?;
+    if args.format == Format::Json {
+        return Ok(Outcome::ok(json(&found)));
     }
-    let goal = match t.source {
-        Source::Populations => fit::penrose_targets(&t.values),
-        _ => fit::normalize(&t.values),
-    }
-    .map_err(|e| Failure::input(format!("{}: {e}", t.from)))?;
-    let budget = (args.seconds * STEPS_PER_SECOND) as u128;
-    let found = fit::fit(
-        &goal,
-        Options {
-            budget,
-            max_total: args.max_total.max(1),
-        },
-    )
-    .map_err(|e| Failure::input(format!("{}: {e}", t.from)))?;
-    let rule =
-        Rule::weighted(found.quota, found.weights.clone()).map_err(|e| Failure::input(e.to_string()))?;
-    let exact = drafting::power_of(&rule, "fitted vote", drafting::BUDGET)?;
-    let banzhaf: Vec<f64> = exact.members.iter().map(|m| m.banzhaf).collect();
-    let (max, rms) = deviation(&banzhaf, &goal);
+    let vote = &found.weighted_vote.representation;
 
     let mut out = format!("Fit: weights and a quota for {} members\n", t.names.len());
     let kind = match &t.source {
@@ -109,20 +97,20 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
     let _ = writeln!(
         out,
         "  search: deterministic, {:.1e} steps (--seconds {}), total weight up to {}; {:.1e} steps used{}\n",
-        budget as f64,
+        found.budget as f64,
         args.seconds,
         drafting::thousands(args.max_total),
         found.steps as f64,
         if found.exhausted { ", budget exhausted" } else { "" }
     );
-    let total: u64 = found.weights.iter().sum();
+    let total = vote.total();
     let _ = writeln!(
         out,
         "Weighted vote found: {}\n  total weight {}, quota {} ({:.2}% of the total)",
-        notation(found.quota, &found.weights),
+        vote.notation(),
         drafting::thousands(total),
-        drafting::thousands(found.quota),
-        found.quota as f64 / total as f64 * 100.0
+        drafting::thousands(vote.quota),
+        vote.quota as f64 / total as f64 * 100.0
     );
     let mut table = Table::new(
         [
@@ -136,13 +124,13 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
         .map(|(h, a)| (h.to_string(), *a))
         .collect(),
     );
-    for i in 0..t.names.len() {
+    for m in &found.members {
         table.push(vec![
-            t.names[i].clone(),
-            drafting::thousands(found.weights[i]),
-            format!("{:.6}", goal[i]),
-            format!("{:.6}", banzhaf[i]),
-            format!("{:+.6}", banzhaf[i] - goal[i]),
+            m.name.clone(),
+            drafting::thousands(m.weight),
+            format!("{:.6}", m.target),
+            format!("{:.6}", m.banzhaf),
+            format!("{:+.6}", m.deviation),
         ]);
     }
     out.push_str(
@@ -152,24 +140,23 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
             .map(|l| format!("  {l}\n"))
             .collect::<String>(),
     );
+    let (max, rms) = (found.max_deviation, found.rms_deviation);
     let exactly = if max < 1e-12 { "  (the target is met)" } else { "" };
     let _ = writeln!(
         out,
         "Deviation: max {max:.6}, root-mean-square {rms:.6}{exactly}\n"
     );
-
-    let q_star = fit::optimal_quota(&found.weights);
-    let q_int = ((q_star * total as f64).ceil() as u64).clamp(total / 2 + 1, total);
-    let b_star = fit::banzhaf(&found.weights, q_int).map_err(|e| Failure::input(e.to_string()))?;
-    let (max_s, rms_s) = deviation(&b_star, &goal);
+    let o = &found.optimal_quota;
     let _ = writeln!(
         out,
         "For comparison, the optimal quota of Slomczynski & Zyczkowski (2006) for these weights,\n  \
          q = (1 + sqrt(sum of squared weights) / total weight) / 2 = {:.2}% of the total, is {} of {};\n  \
-         with it the deviation is max {max_s:.6}, root-mean-square {rms_s:.6}.",
-        q_star * 100.0,
-        drafting::thousands(q_int),
-        drafting::thousands(total)
+         with it the deviation is max {:.6}, root-mean-square {:.6}.",
+        o.share * 100.0,
+        drafting::thousands(o.quota),
+        drafting::thousands(total),
+        o.max_deviation,
+        o.rms_deviation
     );
     let _ = writeln!(
         out,
@@ -178,31 +165,6 @@ pub fn run(args: &FitArgs) -> Result<Outcome, Failure> {
         t.names.len()
     );
     Ok(Outcome::ok(out))
-}
-
-fn deviation(index: &[f64], goal: &[f64]) -> (f64, f64) {
-    let n = goal.len().max(1) as f64;
-    let max = index
-        .iter()
-        .zip(goal)
-        .map(|(a, b)| (a - b).abs())
-        .fold(0.0, f64::max);
-    let rms = (index
-        .iter()
-        .zip(goal)
-        .map(|(a, b)| (a - b) * (a - b))
-        .sum::<f64>()
-        / n)
-        .sqrt();
-    (max, rms)
-}
-
-fn notation(quota: u64, weights: &[u64]) -> String {
-    clout::toolkit::weighted::Representation {
-        quota,
-        weights: weights.to_vec(),
-    }
-    .notation()
 }
 
 fn targets(args: &FitArgs) -> Result<Targets, Failure> {
@@ -233,7 +195,7 @@ fn targets(args: &FitArgs) -> Result<Targets, Failure> {
     }
     let input = Input::load(args.targets.as_deref(), args.game.as_deref(), false)?;
     let rule = input.rule(args.rule.as_deref())?;
-    let power = drafting::power_of(&rule.rule, &rule.name, drafting::BUDGET)?;
+    let power = answers::exact_power(&rule.rule, &rule.name, BUDGET, &mut Progress)?;
     Ok(Targets {
         names: input.file.members.iter().map(|m| m.name.clone()).collect(),
         values: power.members.iter().map(|m| m.banzhaf).collect(),

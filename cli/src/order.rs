@@ -6,20 +6,22 @@
 use std::fmt::Write;
 
 use clap::Args;
-use clout::toolkit::desirability::{self, Witness};
-use clout::toolkit::profile::ProfileTable;
-use clout::toolkit::PROFILE_LIMIT;
+use clout::drafting::{self as answers, Witness};
 use clout_dsl::RuleFile;
 
-use crate::drafting::{self, label, names};
+use crate::drafting::{self, label, names, Format};
 use crate::input::Input;
-use crate::report::CAUTION;
+use crate::progress::Progress;
+use crate::report::{json, CAUTION};
 use crate::{Failure, Outcome, Source};
 
 #[derive(Args)]
 pub struct OrderArgs {
     #[command(flatten)]
     source: Source,
+    /// Output format (JSON: `clout::drafting::Order`, keys in the README).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    format: Format,
 }
 
 pub fn run(args: &OrderArgs) -> Result<Outcome, Failure> {
@@ -27,9 +29,10 @@ pub fn run(args: &OrderArgs) -> Result<Outcome, Failure> {
     let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
     let rule = input.rule(s.rule.as_deref())?;
     let file = &input.file;
-    let table = ProfileTable::of_rule(&rule.rule, drafting::groups(rule), PROFILE_LIMIT)
-        .map_err(|e| drafting::failure(&rule.name, e))?;
-    let order = desirability::order(&table);
+    let order = answers::order(file, rule, &mut Progress)?;
+    if args.format == Format::Json {
+        return Ok(Outcome::ok(json(&order)));
+    }
     let mut out = drafting::heading("Order of influence", &input, rule);
     let _ = writeln!(
         out,
@@ -38,7 +41,7 @@ pub fn run(args: &OrderArgs) -> Result<Outcome, Failure> {
          both ways are symmetric: exchanging them changes no outcome.\n"
     );
     let k = order.classes.len();
-    if order.complete() {
+    if order.complete {
         let _ = writeln!(
             out,
             "Complete: every two members are comparable. From most to least desirable:"
@@ -60,30 +63,36 @@ pub fn run(args: &OrderArgs) -> Result<Outcome, Failure> {
         );
     }
     for (a, class) in order.classes.iter().enumerate() {
-        let sym = if class.len() > 1 {
-            format!("  ({} symmetric members)", drafting::thousands(class.len()))
+        let sym = if class.members.len() > 1 {
+            format!(
+                "  ({} symmetric members)",
+                drafting::thousands(class.members.len())
+            )
         } else {
             String::new()
         };
-        let _ = writeln!(out, "  {}. {}{sym}", a + 1, names(file, class));
-        if !order.complete() {
-            let below: Vec<String> = (0..k)
-                .filter(|&b| order.strictly_above(a, b))
-                .map(|b| (b + 1).to_string())
-                .collect();
+        let _ = writeln!(out, "  {}. {}{sym}", a + 1, names(file, &class.members.indices));
+        if !order.complete {
+            let below: Vec<String> = class.above.iter().map(|b| (b + 1).to_string()).collect();
             if !below.is_empty() {
                 let _ = writeln!(out, "     more desirable than {}", below.join(", "));
             }
         }
     }
-    if order.complete() && (2..=6).contains(&k) {
-        let chain: Vec<String> = order.classes.iter().map(|c| label(file, c)).collect();
+    if order.complete && (2..=6).contains(&k) {
+        let chain: Vec<String> = order
+            .classes
+            .iter()
+            .map(|c| label(file, &c.members.indices))
+            .collect();
         let _ = writeln!(out, "\n  {}", chain.join("  >  "));
     }
-    for (a, b, w1, w2) in &order.incomparable {
+    for pair in &order.incomparable {
+        let [a, b] = pair.classes;
         let _ = writeln!(out, "\nClasses {} and {} are not comparable:", a + 1, b + 1);
-        witness(&mut out, file, w1);
-        witness(&mut out, file, w2);
+        for w in &pair.witnesses {
+            witness(&mut out, file, w);
+        }
     }
     if k == 1 {
         let _ = writeln!(out, "\nAll members are symmetric: the rule treats them alike.");
@@ -93,17 +102,14 @@ pub fn run(args: &OrderArgs) -> Result<Outcome, Failure> {
 }
 
 fn witness(out: &mut String, file: &RuleFile, w: &Witness) {
-    let (yes, no) = (
-        &file.members[w.joins_and_wins].name,
-        &file.members[w.joins_and_loses].name,
-    );
+    let (yes, no) = (&w.passes_with, &w.fails_with);
     let _ = if w.coalition.is_empty() {
         writeln!(out, "  {yes} alone passes, {no} alone fails")
     } else {
         writeln!(
             out,
             "  with {}: adding {yes} passes, adding {no} fails",
-            names(file, &w.coalition)
+            names(file, &w.coalition.indices)
         )
     };
 }

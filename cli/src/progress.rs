@@ -46,3 +46,12 @@ pub fn with_progress<T: Send>(label: &str, work: impl FnOnce() -> T + Send) -> T
         }
     })
 }
+
+/// The library's steps with a progress line each (see [`with_progress`]).
+pub struct Progress;
+
+impl clout::drafting::Watch for Progress {
+    fn step<T: Send>(&mut self, label: &str, work: impl FnOnce() -> T + Send) -> Result<T, clout::Failure> {
+        Ok(with_progress(label, work))
+    }
+}

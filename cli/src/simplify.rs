@@ -11,13 +11,13 @@
 use std::fmt::Write;
 
 use clap::Args;
-use clout::toolkit::profile;
-use clout::toolkit::weighted::{self, Level, Minimality, Representation, TradingTransfer, Verdict};
-use clout_dsl::{CompiledRule, RuleFile};
+use clout::drafting::{self as answers, Checked, LeastTotal, Members, Search, Simplification, WeightedVote};
+use clout_dsl::RuleFile;
 
-use crate::drafting::{self, names, thousands};
+use crate::drafting::{self, names, thousands, Format};
 use crate::input::Input;
-use crate::report::CAUTION;
+use crate::progress::Progress;
+use crate::report::{json, CAUTION};
 use crate::{parse_steps, Failure, Outcome, Source};
 
 #[derive(Args)]
@@ -30,78 +30,66 @@ pub struct SimplifyArgs {
     /// How many weighted votes of an intersection to print.
     #[arg(long, value_name = "N", default_value_t = 4)]
     parts: usize,
+    /// Output format (JSON: `clout::drafting::Simplification`, keys in the README).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    format: Format,
 }
 
 pub fn run(args: &SimplifyArgs) -> Result<Outcome, Failure> {
     let s = &args.source;
     let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
     let rule = input.rule(s.rule.as_deref())?;
+    let options = answers::SimplifyOptions { budget: args.budget };
+    let answer = answers::simplify(&input.file, rule, &options, &mut Progress)?;
+    if args.format == Format::Json {
+        return Ok(Outcome::ok(json(&answer)));
+    }
     let file = &input.file;
     let n = rule.rule.members();
     let mut out = drafting::heading("Simplify", &input, rule);
-    let (table, level) = match weighted::table_for(&rule.rule) {
-        Ok(t) => t,
-        Err(e @ clout::toolkit::Error::TooLarge { .. }) => return too_large(&input, rule, e, args.budget),
-        Err(e) => return Err(drafting::failure(&rule.name, e)),
+    dummies_section(&mut out, file, &answer.dummies, n);
+    let (Some(checked), Some(search)) = (&answer.checked, &answer.search) else {
+        too_large(&mut out, &answer);
+        return Ok(Outcome::ok(out));
     };
-    // With one member per type, patterns are coalitions.
-    let singletons = level == Level::Members || table.types().iter().all(|t| t.len() == 1);
-    let unit = if singletons {
-        "coalitions"
-    } else {
-        "patterns of interchangeable members"
-    };
-    let everything = if singletons {
+    let everything = if checked.patterns_are_coalitions {
         format!("all {} coalitions", drafting::coalitions(n))
     } else {
         format!(
             "all {} patterns of interchangeable members, so on all {} coalitions",
-            thousands(table.len()),
+            thousands(checked.patterns),
             drafting::coalitions(n)
         )
     };
-
-    let dummies = weighted::dummies(&table);
-    dummies_section(&mut out, file, &dummies, n);
-
-    let w = weighted::test(&table).map_err(|e| drafting::failure(&rule.name, e))?;
-    match &w.verdict {
-        Verdict::Weighted {
-            representation,
-            minimal,
-        } => {
-            weighted_section(&mut out, file, representation, *minimal);
-            let check = cross_check(rule, representation, args.budget)?;
-            if !weighted::same_on_table(
-                &table,
-                &representation
-                    .rule()
-                    .map_err(|e| drafting::failure(&rule.name, e))?,
-            ) {
-                return Err(Failure::input(format!(
-                    "rule `{}`: internal check failed: the weighted vote differs from the rule",
-                    rule.name
-                )));
-            }
+    match (
+        &answer.weighted_vote,
+        &answer.trading_transfer,
+        &answer.intersection,
+    ) {
+        (Some(vote), _, _) => {
+            weighted_section(&mut out, file, vote, answer.least_total);
             let _ = writeln!(
                 out,
-                "Checked exactly: the weighted vote passes the same coalitions as the rule on {everything};\n  {check}"
+                "Checked exactly: the weighted vote passes the same coalitions as the rule on {everything};\n  {}",
+                engines(checked)
             );
         }
-        Verdict::NotWeighted {
-            transfer,
-            intersection,
-        } => {
-            if !transfer.holds(n, |c| profile::passes(&rule.rule, c)) {
-                return Err(Failure::input(format!(
-                    "rule `{}`: internal check failed: the trading transfer does not hold",
-                    rule.name
-                )));
-            }
-            transfer_section(&mut out, file, transfer);
+        (None, Some(transfer), Some(intersection)) => {
+            transfer_section(&mut out, file, &transfer.winning, &transfer.losing);
             intersection_section(&mut out, file, intersection, &everything, args.parts);
         }
+        _ => {}
     }
+    footer(&mut out, checked, search);
+    Ok(Outcome::ok(out))
+}
+
+fn footer(out: &mut String, checked: &Checked, w: &Search) {
+    let unit = if checked.patterns_are_coalitions {
+        "coalitions"
+    } else {
+        "patterns of interchangeable members"
+    };
     let _ = writeln!(
         out,
         "\nFound by an integer program over {} minimal winning and {} maximal losing {unit} \
@@ -112,10 +100,10 @@ pub fn run(args: &SimplifyArgs) -> Result<Outcome, Failure> {
         if w.rounds == 1 { "" } else { "s" }
     );
     let _ = writeln!(out, "\n{CAUTION}");
-    Ok(Outcome::ok(out))
 }
 
-fn dummies_section(out: &mut String, file: &RuleFile, dummies: &[usize], n: usize) {
+fn dummies_section(out: &mut String, file: &RuleFile, dummies: &Members, n: usize) {
+    let dummies = &dummies.indices;
     if dummies.is_empty() {
         let _ = writeln!(out, "Dummies: none; every member's vote decides some outcome.\n");
         return;
@@ -140,7 +128,8 @@ fn dummies_section(out: &mut String, file: &RuleFile, dummies: &[usize], n: usiz
 }
 
 /// One line per weight, heaviest first: the weight and the members holding it.
-fn weights_table(out: &mut String, file: &RuleFile, r: &Representation) {
+fn weights_table(out: &mut String, file: &RuleFile, vote: &WeightedVote) {
+    let r = &vote.representation;
     let mut weights: Vec<u64> = r.weights.clone();
     weights.sort_unstable_by(|a, b| b.cmp(a));
     weights.dedup();
@@ -163,81 +152,62 @@ fn weights_table(out: &mut String, file: &RuleFile, r: &Representation) {
     );
 }
 
-fn weighted_section(out: &mut String, file: &RuleFile, r: &Representation, minimal: Minimality) {
+fn weighted_section(out: &mut String, file: &RuleFile, vote: &WeightedVote, least: Option<LeastTotal>) {
+    let r = &vote.representation;
     let _ = writeln!(
         out,
         "Weighted: yes. The rule passes exactly the coalitions whose weights reach the quota of\n  {}\n  (weights in declaration order; `--game` and `compare` read this notation):",
         r.notation()
     );
-    weights_table(out, file, r);
+    weights_table(out, file, vote);
     let total = thousands(r.total());
-    let _ = match minimal {
-        Minimality::Proved => writeln!(
+    let _ = match least {
+        Some(LeastTotal::Proved) => writeln!(
             out,
             "  Least total weight: {total}; no integer weights with a smaller total give the same rule."
         ),
-        Minimality::ProvedAmongEqual => writeln!(
+        Some(LeastTotal::AmongEqualWeights) => writeln!(
             out,
             "  Least total weight: {total} among weights that are equal for interchangeable members\n  \
              (members with identical weights in the rule); unequal weights were not searched."
         ),
-        Minimality::NotProved => writeln!(
+        Some(LeastTotal::NotProved) => writeln!(
             out,
             "  Total weight {total}: the solver stopped at its node limit, so a smaller total may exist."
         ),
+        Some(LeastTotal::NotSearched) | None => Ok(()),
     };
     out.push('\n');
 }
 
-/// The exact engines on both rules: same winning and minimal winning
-/// counts and the same swings for every member.
-fn cross_check(rule: &CompiledRule, r: &Representation, budget: u128) -> Result<String, Failure> {
-    let new = r.rule().map_err(|e| drafting::failure(&rule.name, e))?;
-    let (Ok(a), Ok(b)) = (
-        drafting::power_of(&rule.rule, &rule.name, budget),
-        drafting::power_of(&new, "weighted vote", budget),
-    ) else {
-        return Ok("the exact engines were not run (over the --budget).".to_string());
+/// What the exact engines said about the rule and its weighted vote.
+fn engines(checked: &Checked) -> String {
+    let Some(winning) = &checked.winning_coalitions else {
+        return "the exact engines were not run (over the --budget).".to_string();
     };
-    let same_swings = a
-        .members
-        .iter()
-        .zip(&b.members)
-        .all(|(x, y)| x.swings == y.swings);
-    if a.winning != b.winning
-        || !same_swings
-        || (a.minimal_winning.is_some()
-            && b.minimal_winning.is_some()
-            && a.minimal_winning != b.minimal_winning)
-    {
-        return Err(Failure::input(format!(
-            "rule `{}`: internal check failed: the exact engines disagree with the weighted vote",
-            rule.name
-        )));
-    }
-    let minimal = match &a.minimal_winning {
+    let minimal = match &checked.minimal_winning_coalitions {
         Some(m) => format!(", {} minimal winning", crate::text::count(m)),
         None => String::new(),
     };
-    Ok(format!(
+    format!(
         "the exact engines agree ({} winning coalitions{minimal}, the same swing count for every member).",
-        crate::text::count(&a.winning)
-    ))
+        crate::text::count(winning)
+    )
 }
 
-fn transfer_section(out: &mut String, file: &RuleFile, t: &TradingTransfer) {
-    let k = t.winning.len();
+fn transfer_section(out: &mut String, file: &RuleFile, winning: &[Members], losing: &[Members]) {
+    let k = winning.len();
     let _ = writeln!(
         out,
         "Weighted: no. No weights and quota give this rule. Proof, a trading transfer\n  \
          (Taylor & Zwicker 1999): {k} winning coalitions"
     );
-    for (i, c) in t.winning.iter().enumerate() {
-        let _ = writeln!(out, "    X{}  {}", i + 1, names(file, c));
+    for (i, c) in winning.iter().enumerate() {
+        let _ = writeln!(out, "    X{}  {}", i + 1, names(file, &c.indices));
     }
     let _ = writeln!(out, "  and {k} losing coalitions");
-    for (i, c) in t.losing.iter().enumerate() {
-        let _ = writeln!(out, "    Y{}  {}", i + 1, names(file, c));
+    for (i, c) in losing.iter().enumerate() {
+        let _ = writeln!(out, "    Y{}  {}", i + 1, names(file, &c.indices));
     }
     let _ = writeln!(
         out,
@@ -249,7 +219,7 @@ fn transfer_section(out: &mut String, file: &RuleFile, t: &TradingTransfer) {
 fn intersection_section(
     out: &mut String,
     file: &RuleFile,
-    parts: &[Representation],
+    parts: &[WeightedVote],
     everything: &str,
     shown: usize,
 ) {
@@ -260,7 +230,7 @@ fn intersection_section(
          when all of these {k} weighted votes pass (checked on {everything}):"
     );
     for (i, r) in parts.iter().enumerate().take(shown) {
-        let _ = writeln!(out, "  {}. {}", i + 1, r.notation());
+        let _ = writeln!(out, "  {}. {}", i + 1, r.representation.notation());
         weights_table(out, file, r);
     }
     if parts.len() > shown {
@@ -272,33 +242,17 @@ fn intersection_section(
     }
 }
 
-/// Too many distinct members for the exact test: what can still be said.
-fn too_large(
-    input: &Input,
-    rule: &CompiledRule,
-    err: clout::toolkit::Error,
-    budget: u128,
-) -> Result<Outcome, Failure> {
-    let Some((attribute, quota)) = rule.rule.single_threshold() else {
-        return Err(drafting::failure(&rule.name, err));
-    };
-    let mut out = drafting::heading("Simplify", input, rule);
-    let power = drafting::power_of(&rule.rule, &rule.name, budget)?;
-    let dummies: Vec<usize> = (0..rule.rule.members())
-        .filter(|&i| power.members[i].dummy)
-        .collect();
-    dummies_section(&mut out, &input.file, &dummies, rule.rule.members());
-    let r = Representation {
-        quota,
-        weights: rule.rule.attribute_weights(attribute).to_vec(),
-    };
-    let _ = writeln!(
-        out,
-        "Weighted: yes, as written: {}.\n  A least-total representation needs the exact test, which is too large here:",
-        r.notation()
-    );
-    let reason = drafting::failure(&rule.name, err).message;
-    let _ = write!(out, "  {}", reason.trim_start_matches("error: "));
+/// Too many distinct members for the exact test: what could still be said.
+fn too_large(out: &mut String, answer: &Simplification) {
+    if let Some(vote) = &answer.weighted_vote {
+        let _ = writeln!(
+            out,
+            "Weighted: yes, as written: {}.\n  A least-total representation needs the exact test, which is too large here:",
+            vote.representation.notation()
+        );
+    }
+    if let Some(reason) = &answer.too_large {
+        let _ = writeln!(out, "  {reason}");
+    }
     let _ = writeln!(out, "\n{CAUTION}");
-    Ok(Outcome::ok(out))
 }

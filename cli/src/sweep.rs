@@ -7,18 +7,16 @@ use std::fmt::Write;
 use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
+use clout::drafting::{self as answers, Sweep, SweepOptions, SweepPoint};
 use clout::toolkit::chart::{self, Chart, Panel, Series};
-use clout::toolkit::sweep::{self, Level, Point};
-use clout_dsl::{AttributeKind, CompiledRule};
+use clout::toolkit::sweep::Level;
 
 use crate::drafting::{self, label, names};
 use crate::input::Input;
-use crate::report::{CAUTION, MODEL};
+use crate::progress::Progress;
+use crate::report::{json, CAUTION, MODEL};
 use crate::text::{Align, Table};
 use crate::{parse_steps, Failure, Outcome, Source};
-
-/// Most points of one sweep.
-const MAX_POINTS: usize = 201;
 
 #[derive(Args)]
 pub struct SweepArgs {
@@ -54,25 +52,32 @@ pub struct SweepArgs {
 enum SweepFormat {
     Text,
     Csv,
+    /// `clout::drafting::Sweep`, keys in the README.
+    Json,
 }
 
 pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
     let s = &args.source;
     let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
     let rule = input.rule(s.rule.as_deref())?;
-    let (attribute, atoms) = moving(rule, args.attr.as_deref(), args.condition)?;
-    let total = rule.rule.total(attribute);
-    let attr_name = &rule.attributes[attribute].name;
-    let quotas = sweep::quotas(total, args.from, args.to, args.step, MAX_POINTS)
-        .map_err(|e| drafting::failure(&rule.name, e))?;
-    let points = sweep::sweep(&rule.rule, &atoms, &quotas, args.budget)
-        .map_err(|e| drafting::failure(&rule.name, e))?;
+    let options = SweepOptions {
+        attribute: args.attr.clone(),
+        condition: args.condition,
+        from: args.from,
+        to: args.to,
+        step: args.step,
+        budget: args.budget,
+    };
+    let answer = answers::sweep(&input.file, rule, &options, &mut Progress)?;
+    let points = &answer.points;
+    let total = answer.total;
+    let attr_name = &answer.attribute;
     // One series per set of members whose figures agree at every point.
     let groups = clout::toolkit::profile::group_by_key(rule.rule.members(), |i| {
         points
             .iter()
             .flat_map(|p| {
-                let m = &p.power.members[i];
+                let m = &p.members[i];
                 [m.banzhaf.to_bits(), m.shapley_shubik.to_bits()]
             })
             .collect::<Vec<u64>>()
@@ -80,7 +85,7 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
     let labels: Vec<String> = groups.iter().map(|g| label(&input.file, g)).collect();
     let share = |q: u64| q as f64 / total as f64 * 100.0;
     if let Some(path) = &args.svg {
-        let moved: Vec<&str> = atoms.iter().map(|&k| rule.conditions[k].text.as_str()).collect();
+        let moved: Vec<&str> = answer.conditions.iter().map(|c| c.text.as_str()).collect();
         let c = Chart {
             title: format!("{}, rule `{}`: power as the quota of {attr_name} moves", input.title(), rule.name),
             note: format!(
@@ -90,13 +95,13 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
             x_label: format!("quota of {attr_name}, % of the total ({})", drafting::thousands(total)),
             x: points.iter().map(|p| share(p.quota)).collect(),
             panels: vec![
-                panel("Banzhaf index (normalized)", &groups, &labels, &points, |p, i| p.power.members[i].banzhaf),
-                panel("Shapley-Shubik index", &groups, &labels, &points, |p, i| p.power.members[i].shapley_shubik),
+                panel("Banzhaf index (normalized)", &groups, &labels, points, |p, i| p.members[i].banzhaf),
+                panel("Shapley-Shubik index", &groups, &labels, points, |p, i| p.members[i].shapley_shubik),
                 Panel {
                     y_label: "Probability of passage".to_string(),
                     series: vec![Series {
                         label: "probability of passage".to_string(),
-                        values: points.iter().map(|p| p.power.passage_probability).collect(),
+                        values: points.iter().map(|p| p.passage_probability).collect(),
                     }],
                     shared: false,
                 },
@@ -106,12 +111,14 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
             .map_err(|e| Failure::input(format!("cannot write `{}`: {e}", path.display())))?;
     }
     let out = match args.format {
-        SweepFormat::Csv => csv(&groups, &input, &points, total),
+        SweepFormat::Json => json(&answer),
+        SweepFormat::Csv => csv(&groups, &input, &answer),
         SweepFormat::Text => {
             let mut out = drafting::heading("Sweep", &input, rule);
-            let moved: Vec<String> = atoms
+            let moved: Vec<String> = answer
+                .conditions
                 .iter()
-                .map(|&k| format!("condition {} `{}`", k + 1, rule.conditions[k].text))
+                .map(|c| format!("condition {} `{}`", c.number, c.text))
                 .collect();
             let _ = writeln!(
                 out,
@@ -121,8 +128,8 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
                 moved.join(" and "),
                 drafting::thousands(total),
                 points.len(),
-                drafting::thousands(quotas[0]),
-                drafting::thousands(*quotas.last().unwrap_or(&0))
+                drafting::thousands(points.first().map_or(0, |p| p.quota)),
+                drafting::thousands(points.last().map_or(0, |p| p.quota))
             );
             for (title, pick) in [
                 ("Banzhaf index (normalized)", 0usize),
@@ -138,13 +145,13 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
                 }
                 head.extend(labels.iter().map(|l| (l.clone(), Align::Right)));
                 let mut t = Table::new(head);
-                for p in &points {
+                for p in points {
                     let mut row = vec![drafting::thousands(p.quota), format!("{:.1}%", share(p.quota))];
                     if pick == 0 {
-                        row.push(format!("{:.4}", p.power.passage_probability));
+                        row.push(format!("{:.4}", p.passage_probability));
                     }
                     for g in &groups {
-                        let m = &p.power.members[g[0]];
+                        let m = &p.members[g[0]];
                         row.push(format!(
                             "{:.4}",
                             if pick == 0 { m.banzhaf } else { m.shapley_shubik }
@@ -172,8 +179,8 @@ fn panel(
     title: &str,
     groups: &[Vec<usize>],
     labels: &[String],
-    points: &[Point],
-    value: impl Fn(&Point, usize) -> f64,
+    points: &[SweepPoint],
+    value: impl Fn(&SweepPoint, usize) -> f64,
 ) -> Panel {
     Panel {
         y_label: title.to_string(),
@@ -201,7 +208,7 @@ fn csv_field(s: &str) -> String {
     }
 }
 
-fn csv(groups: &[Vec<usize>], input: &Input, points: &[Point], total: u64) -> String {
+fn csv(groups: &[Vec<usize>], input: &Input, answer: &Sweep) -> String {
     let mut out = String::from("quota,share,passage_probability");
     let full: Vec<String> = groups.iter().map(|g| names(&input.file, g)).collect();
     for kind in ["banzhaf", "shapley_shubik"] {
@@ -211,110 +218,15 @@ fn csv(groups: &[Vec<usize>], input: &Input, points: &[Point], total: u64) -> St
         }
     }
     out.push('\n');
-    for p in points {
-        let _ = write!(
-            out,
-            "{},{},{}",
-            p.quota,
-            p.quota as f64 / total as f64,
-            p.power.passage_probability
-        );
+    for p in &answer.points {
+        let _ = write!(out, "{},{},{}", p.quota, p.share, p.passage_probability);
         for g in groups {
-            let _ = write!(out, ",{}", p.power.members[g[0]].banzhaf);
+            let _ = write!(out, ",{}", p.members[g[0]].banzhaf);
         }
         for g in groups {
-            let _ = write!(out, ",{}", p.power.members[g[0]].shapley_shubik);
+            let _ = write!(out, ",{}", p.members[g[0]].shapley_shubik);
         }
         out.push('\n');
     }
     out
-}
-
-/// The attribute and the conditions (atom indices) that move.
-fn moving(
-    rule: &CompiledRule,
-    attr: Option<&str>,
-    condition: Option<usize>,
-) -> Result<(usize, Vec<usize>), Failure> {
-    let atoms = rule.rule.atoms();
-    let listing = || {
-        rule.conditions
-            .iter()
-            .zip(atoms)
-            .enumerate()
-            .map(|(k, (c, a))| {
-                format!(
-                    "{}: `{}` on {}",
-                    k + 1,
-                    c.text,
-                    rule.attributes[usize::from(a.attribute)].name
-                )
-            })
-            .collect::<Vec<_>>()
-            .join("; ")
-    };
-    if let Some(k) = condition {
-        let Some(atom) = k.checked_sub(1).and_then(|i| atoms.get(i)) else {
-            return Err(Failure::input(format!(
-                "rule `{}` has no condition {k}\n  = hint: its conditions are {}",
-                rule.name,
-                listing()
-            )));
-        };
-        let a = usize::from(atom.attribute);
-        if let Some(name) = attr {
-            if rule.attributes[a].name != name {
-                return Err(Failure::input(format!(
-                    "condition {k} of rule `{}` is on {}, not on {name}",
-                    rule.name, rule.attributes[a].name
-                )));
-            }
-        }
-        return Ok((a, vec![k - 1]));
-    }
-    let used: Vec<usize> = {
-        let mut v: Vec<usize> = atoms.iter().map(|a| usize::from(a.attribute)).collect();
-        v.sort_unstable();
-        v.dedup();
-        v
-    };
-    let attribute = match attr {
-        Some(name) => {
-            let Some(a) = used.iter().copied().find(|&a| rule.attributes[a].name == name) else {
-                let names: Vec<&str> = used.iter().map(|&a| rule.attributes[a].name.as_str()).collect();
-                return Err(Failure::input(format!(
-                    "no condition of rule `{}` is on `{name}`\n  = hint: its conditions are on {}",
-                    rule.name,
-                    names.join(", ")
-                )));
-            };
-            a
-        }
-        None => {
-            let declared: Vec<usize> = used
-                .iter()
-                .copied()
-                .filter(|&a| rule.attributes[a].kind == AttributeKind::Declared)
-                .collect();
-            match (declared.as_slice(), used.as_slice()) {
-                ([a], _) | ([], [a]) => *a,
-                _ => {
-                    return Err(Failure::input(format!(
-                        "rule `{}` has conditions on several attributes: say which moves\n  = hint: \
-                         --attr NAME moves every condition on NAME, --condition N moves one; the \
-                         conditions are {}",
-                        rule.name,
-                        listing()
-                    )))
-                }
-            }
-        }
-    };
-    let moved = atoms
-        .iter()
-        .enumerate()
-        .filter(|(_, a)| usize::from(a.attribute) == attribute)
-        .map(|(k, _)| k)
-        .collect();
-    Ok((attribute, moved))
 }

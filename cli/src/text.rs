@@ -9,14 +9,7 @@ pub const EXACT_DIGITS: usize = 15;
 
 /// `1234567` as `1,234,567`.
 pub fn thousands(digits: &str) -> String {
-    let mut out = String::with_capacity(digits.len() + digits.len() / 3);
-    for (k, c) in digits.chars().enumerate() {
-        if k > 0 && (digits.len() - k) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
+    clout::drafting::thousands(digits)
 }
 
 /// An exact decimal count for reading: in full, or `≈` and 5 significant digits.

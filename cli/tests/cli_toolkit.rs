@@ -189,24 +189,25 @@ fn compare_matches_members_by_name_or_position() {
     );
 }
 
+/// `[q; 2, 1, 1]` from q = 2 to 4.
+const SWEEP_2_4: &[&str] = &[
+    "sweep",
+    "--game",
+    "[2; 2, 1, 1]",
+    "--from",
+    "2",
+    "--to",
+    "4",
+    "--step",
+    "1",
+];
+
 #[test]
 fn sweep_csv_matches_hand_values() {
     // [q; 2, 1, 1] from q = 2 to 4, by hand: at q = 2 and q = 3 the swings
     // are 3, 1, 1 (Banzhaf 0.6, 0.2, 0.2); at q = 4 (unanimity) 1, 1, 1, and
     // one coalition in 8 passes.
-    let out = ok(&[
-        "sweep",
-        "--game",
-        "[2; 2, 1, 1]",
-        "--from",
-        "2",
-        "--to",
-        "4",
-        "--step",
-        "1",
-        "--format",
-        "csv",
-    ]);
+    let out = ok(&[SWEEP_2_4, &["--format", "csv"]].concat());
     let lines: Vec<&str> = out.lines().collect();
     assert_eq!(lines.len(), 4, "{out}");
     assert!(
@@ -388,4 +389,84 @@ fn bad_input_exits_2() {
         &["order", "examples/council.clout", "--rule", "motoin"],
         "did you mean `motion`?",
     );
+}
+
+fn json(args: &[&str]) -> serde_json::Value {
+    let mut all = args.to_vec();
+    all.extend(["--format", "json"]);
+    serde_json::from_str(&ok(&all)).unwrap_or_else(|e| panic!("clout {args:?}: {e}"))
+}
+
+#[test]
+fn drafting_json_holds_the_answers_of_the_text() {
+    // [5; 3, 2, 2, 1], by hand: minimal winning {p1, p2}, {p1, p3} and
+    // {p2, p3, p4}, so no dummies; weighted (as written).
+    let s = json(&["simplify", "--game", "[5; 3, 2, 2, 1]"]);
+    assert_eq!(s["weighted"], true);
+    assert_eq!(s["dummies"], serde_json::json!([]));
+    assert_eq!(s["checked"]["patterns"], "16");
+    assert_eq!(s["checked"]["patterns_are_coalitions"], true);
+    let vote = &s["weighted_vote"];
+    assert_eq!(vote["weights"]["p1"].as_str().unwrap().len(), 1);
+    let text = ok(&["simplify", "--game", "[5; 3, 2, 2, 1]"]);
+    assert!(text.contains(vote["notation"].as_str().unwrap()), "{text}");
+
+    let c = json(&["coalitions", "--game", "[5; 3, 2, 2, 1]", "--minimal-winning"]);
+    assert_eq!(c["kind"], "minimal_winning");
+    assert_eq!(c["count"], "3");
+    assert_eq!(
+        c["coalitions"],
+        serde_json::json!([["p1", "p2"], ["p1", "p3"], ["p2", "p3", "p4"]])
+    );
+    // Types {p1}, {p2, p3}, {p4}: patterns (1, 1, 0) standing for 2 coalitions and (0, 2, 1).
+    assert_eq!(c["pattern_count"], 2);
+    assert_eq!(c["patterns"][0]["count"], "2");
+    assert_eq!(
+        c["patterns"][0]["parts"][1],
+        serde_json::json!({"take": 1, "of": ["p2", "p3"]})
+    );
+
+    let d = json(&["compare", "[3; 2, 1, 1]", "[4; 2, 1, 1]"]);
+    assert_eq!(d["verdict"], "different");
+    assert_eq!(d["witness"]["coalition"], serde_json::json!(["p1", "p2"]));
+    assert_eq!(d["witness"]["passes"], "a");
+    assert!((d["members"][0]["banzhaf_a"].as_f64().unwrap() - 0.6).abs() < 1e-12);
+    assert!((d["passage_probability_b"].as_f64().unwrap() - 0.125).abs() < 1e-12);
+    let same = json(&["compare", "[3; 2, 1, 1]", "[5; 3, 2, 2]"]);
+    assert_eq!(same["verdict"], "same");
+    assert_eq!(same["patterns"], "6");
+    assert_eq!(same["members"], serde_json::Value::Null);
+
+    let o = json(&["order", "examples/two-chamber.clout"]);
+    assert_eq!(o["complete"], false);
+    assert_eq!(o["classes"][0]["members"], serde_json::json!(["executive"]));
+    assert_eq!(o["incomparable"].as_array().unwrap().len(), 1);
+
+    // The JSON sweep and the CSV sweep carry the same figures.
+    let w = json(SWEEP_2_4);
+    let csv = ok(&[SWEEP_2_4, &["--format", "csv"]].concat());
+    let row: Vec<f64> = csv
+        .lines()
+        .nth(3)
+        .unwrap()
+        .split(',')
+        .map(|x| x.parse().unwrap())
+        .collect();
+    let last = &w["points"][2];
+    assert_eq!(last["quota"], "4");
+    assert_eq!(last["passage_probability"].as_f64().unwrap(), row[2]);
+    assert_eq!(last["members"][0]["banzhaf"].as_f64().unwrap(), row[3]);
+    assert_eq!(w["conditions"][0]["number"], 1);
+
+    let f = json(&[
+        "fit",
+        "--game",
+        "[5; 3, 2, 2, 1]",
+        "--seconds",
+        "0.05",
+        "--max-total",
+        "40",
+    ]);
+    assert_eq!(f["members"].as_array().unwrap().len(), 4);
+    assert!(f["max_deviation"].as_f64().unwrap() < 1e-9, "{f}");
 }

@@ -1,0 +1,170 @@
+//! Are two drafts the same rule (the same coalitions pass)? If not, a
+//! smallest coalition on which they differ and how each member's power
+//! changes. Members are matched by name when both rules name the same
+//! members, else by position (or as the caller insists). Exact on every
+//! pattern of members interchangeable in both; beyond the pattern limit
+//! the comparison samples and never claims sameness it did not check (see
+//! [`crate::toolkit::compare`]). Two exact analyses when the rules differ.
+
+use clout_core::Rule;
+use clout_dsl::{CompiledRule, RuleFile};
+
+use super::{
+    exact_power, rule_ref, toolkit_failure, Comparison, Difference, Matching, MemberChange, Members, Verdict,
+    Watch,
+};
+use crate::failure::Failure;
+use crate::report::{CAUTION, MODEL};
+use crate::toolkit::compare::{self as equivalence, Equivalence};
+use crate::toolkit::profile;
+
+/// How to compare.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct CompareOptions {
+    /// How to match members (default: by name when both rules name the same
+    /// members, else by position).
+    pub by: Option<Matching>,
+    /// Most elementary steps of each exact analysis of the indices.
+    pub budget: u128,
+}
+
+impl Default for CompareOptions {
+    fn default() -> Self {
+        CompareOptions {
+            by: None,
+            budget: super::BUDGET,
+        }
+    }
+}
+
+/// `order[i]`: B's member matched to A's member i, and how they were matched.
+pub fn matching(a: &RuleFile, b: &RuleFile, by: Option<Matching>) -> Result<(Vec<usize>, Matching), Failure> {
+    let na: Vec<&str> = a.members.iter().map(|m| m.name.as_str()).collect();
+    let nb: Vec<&str> = b.members.iter().map(|m| m.name.as_str()).collect();
+    let by_name: Option<Vec<usize>> = na.iter().map(|x| nb.iter().position(|y| y == x)).collect();
+    let by_name = by_name.filter(|_| na.len() == nb.len());
+    match (by, by_name) {
+        (Some(Matching::Name), None) => {
+            let only_a: Vec<&str> = na.iter().filter(|x| !nb.contains(x)).copied().take(8).collect();
+            let only_b: Vec<&str> = nb.iter().filter(|x| !na.contains(x)).copied().take(8).collect();
+            Err(Failure::input(format!(
+                "the rules name different members (only in A: {}; only in B: {})",
+                list_or_none(&only_a),
+                list_or_none(&only_b)
+            ))
+            .with_hint("match them by position with --by position"))
+        }
+        (Some(Matching::Name) | None, Some(order)) => Ok((order, Matching::Name)),
+        (Some(Matching::Position) | None, _) if na.len() == nb.len() => {
+            Ok(((0..na.len()).collect(), Matching::Position))
+        }
+        _ => Err(Failure::input(format!(
+            "A has {} members and B has {}: they cannot be matched",
+            na.len(),
+            nb.len()
+        ))
+        .with_hint("compare rules over the same members")),
+    }
+}
+
+fn list_or_none(names: &[&str]) -> String {
+    if names.is_empty() {
+        "none".to_string()
+    } else {
+        names.join(", ")
+    }
+}
+
+/// Compares rule `ra` of `fa` with rule `rb` of `fb`.
+pub fn compare(
+    fa: &RuleFile,
+    ra: &CompiledRule,
+    fb: &RuleFile,
+    rb: &CompiledRule,
+    options: &CompareOptions,
+    watch: &mut impl Watch,
+) -> Result<Comparison, Failure> {
+    let (order, matched_by) = matching(fa, fb, options.by)?;
+    let b = equivalence::reorder(&rb.rule, &order).map_err(|e| toolkit_failure(&rb.name, e))?;
+    let answer = watch
+        .step(
+            &format!("comparing rules `{}` and `{}`", ra.name, rb.name),
+            || equivalence::compare(&ra.rule, &b),
+        )?
+        .map_err(|e| toolkit_failure(&ra.name, e))?;
+    let n = ra.rule.members();
+    let patterns = patterns_of_both(&ra.rule, &b);
+    let mut out = Comparison {
+        a: rule_ref(fa, ra),
+        b: rule_ref(fb, rb),
+        matched_by,
+        verdict: Verdict::Same,
+        witness: None,
+        patterns,
+        patterns_are_coalitions: n < 128 && patterns == 1u128 << n,
+        sampled: None,
+        members: None,
+        passage_probability_a: None,
+        passage_probability_b: None,
+        model: MODEL.to_string(),
+        caution: CAUTION.to_string(),
+        order,
+    };
+    match answer {
+        Equivalence::Same { .. } => return Ok(out),
+        Equivalence::Different {
+            coalition,
+            first_passes,
+            smallest,
+        } => {
+            out.verdict = Verdict::Different;
+            out.witness = Some(Difference {
+                coalition: Members::of(fa, coalition),
+                passes: if first_passes { "a" } else { "b" }.to_string(),
+                smallest,
+            });
+        }
+        Equivalence::Undecided { sampled, .. } => {
+            out.verdict = Verdict::Undecided;
+            out.sampled = Some(sampled);
+        }
+    }
+    let pa = exact_power(&ra.rule, &ra.name, options.budget, watch)?;
+    let pb = exact_power(&b, &rb.name, options.budget, watch)?;
+    if out.verdict == Verdict::Undecided {
+        let differ = pa.winning != pb.winning
+            || pa
+                .members
+                .iter()
+                .zip(&pb.members)
+                .any(|(x, y)| x.swings != y.swings);
+        if differ {
+            out.verdict = Verdict::Different;
+        }
+    }
+    out.members = Some(
+        fa.members
+            .iter()
+            .zip(pa.members.iter().zip(&pb.members))
+            .map(|(m, (x, y))| MemberChange {
+                name: m.name.clone(),
+                banzhaf_a: x.banzhaf,
+                banzhaf_b: y.banzhaf,
+                shapley_shubik_a: x.shapley_shubik,
+                shapley_shubik_b: y.shapley_shubik,
+            })
+            .collect(),
+    );
+    out.passage_probability_a = Some(pa.passage_probability);
+    out.passage_probability_b = Some(pb.passage_probability);
+    Ok(out)
+}
+
+/// Patterns of members interchangeable in both rules (saturating).
+fn patterns_of_both(a: &Rule<Vec<u64>>, b: &Rule<Vec<u64>>) -> u128 {
+    let column =
+        |r: &Rule<Vec<u64>>, i: usize| (0..r.attributes()).map(|x| r.weight(x, i)).collect::<Vec<u64>>();
+    profile::profile_count(&profile::group_by_key(a.members(), |i| {
+        (column(a, i), column(b, i))
+    }))
+}
