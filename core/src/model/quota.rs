@@ -12,12 +12,16 @@
 //! | fewer than `k` against | `T - k + 1` | "fewer than 4 of 27 against" is 24 |
 //! | at most `k` against | `T - k` | "at most 3 of 27 against" is 24 |
 //!
+//! Each is O(1), no heap. Overflow: products are taken in `u128`, where a
+//! share of at most 1 times a `u64` total cannot overflow; a quota that
+//! does not fit is [`Error::CountOverflow`].
+//!
 //! A quota above `T` can never be met and a quota of 0 is always met; both
 //! are representable (the rule language warns about them). Upper bounds on
 //! yes votes ("fewer than 10 seats in favour") are rejected as
 //! [`Error::NonMonotone`].
 
-use crate::Error;
+use crate::model::error::Error;
 
 /// How the yes-sum is compared with the bound.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -16,6 +16,14 @@
 //!
 //! Every figure here is an estimate and is labelled with its half-width;
 //! nothing in this module is exact.
+//!
+//! Time: Monte Carlo O(samples * (n + atoms + nodes)) per figure set,
+//! at most `max_samples` draws; [`penrose_f64`] O(n q) for quota q below
+//! 2^31; [`normal_approximation`] O(n) for Penrose and O(400 n) for
+//! Shapley-Shubik. Space O(n) per thread (plus a 256-entry sum table per 8
+//! members in the one-threshold sampler), O(q) for [`penrose_f64`].
+//! Overflow: hit counters are `u64` and count at most `max_samples` draws;
+//! coalition sums stay below the checked attribute totals; the rest is `f64`.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or
@@ -27,8 +35,10 @@
 use alloc::vec;
 use alloc::vec::Vec;
 
-use crate::limits::MAX_ATTRIBUTES;
-use crate::{Error, Rule};
+use crate::model::engine_id::Engine;
+use crate::model::error::Error;
+use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::rule::Rule;
 
 /// An approximate figure: `value ± half_width`.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -202,7 +212,7 @@ fn run_round<F>(n: usize, s: &Sampling, first: u64, count: u64, batch: &F, hits:
 where
     F: Fn(&mut Rng, &mut [u64]) + Sync,
 {
-    let cores = crate::threads::available();
+    let cores = crate::engine::threads::available();
     let threads = if s.threads == 0 { cores } else { s.threads }.clamp(1, count as usize);
     let totals: Vec<Vec<u64>> = std::thread::scope(|scope| {
         let handles: Vec<_> = (0..threads)
@@ -415,7 +425,7 @@ pub fn sample_shapley<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> R
 /// its recurrence, over at most q / w + 1 steps.
 pub fn penrose_f64<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Vec<Estimate>, Error> {
     let (attr, q) = rule.single_threshold().ok_or(Error::EngineUnsuitable {
-        engine: crate::Engine::Dense,
+        engine: Engine::Dense,
     })?;
     let weights = rule.attribute_weights(attr);
     let n = weights.len();
@@ -528,7 +538,7 @@ pub fn normal_approximation<W: AsRef<[u64]>>(
     rule: &Rule<W>,
 ) -> Result<(Vec<Estimate>, Vec<Estimate>), Error> {
     let (attr, q) = rule.single_threshold().ok_or(Error::EngineUnsuitable {
-        engine: crate::Engine::Dense,
+        engine: Engine::Dense,
     })?;
     let w: Vec<f64> = rule.attribute_weights(attr).iter().map(|&x| x as f64).collect();
     let total: f64 = w.iter().sum();
@@ -592,36 +602,25 @@ pub fn normal_approximation<W: AsRef<[u64]>>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::analyze_with;
-    use crate::count::Count1024;
-    use crate::{Atom, Engine, Node};
+    use crate::engine::{count_allocating, MemberCounts, Scope};
+    use crate::fixtures::{seats_and_heads, two_tier};
+    use crate::model::count::{scaled, Count1024};
 
     fn compound() -> Rule<Vec<u64>> {
         // (seats >= 20 and count >= 5) or seats >= 26 over 9 members (fictional).
-        let mut w = vec![9u64, 7, 6, 4, 3, 2, 2, 1, 1];
-        w.extend([1u64; 9]);
-        let atoms = [
-            Atom {
-                attribute: 0,
-                quota: 20,
-            },
-            Atom {
-                attribute: 1,
-                quota: 5,
-            },
-            Atom {
-                attribute: 0,
-                quota: 26,
-            },
-        ];
-        let f = [
-            Node::Atom(0),
-            Node::Atom(1),
-            Node::All(2),
-            Node::Atom(2),
-            Node::Any(2),
-        ];
-        Rule::new(9, w, &atoms, &f).unwrap()
+        two_tier(9, seats_and_heads(&[9, 7, 6, 4, 3, 2, 2, 1, 1]), [20, 5, 26]).unwrap()
+    }
+
+    /// Exact counts of every member by `engine`.
+    fn exact(rule: &Rule<Vec<u64>>, engine: Engine) -> Vec<MemberCounts<Count1024>> {
+        count_allocating::<_, Count1024>(rule, engine, Scope::All)
+            .unwrap()
+            .1
+    }
+
+    /// The Penrose measure from exact counts: swings / 2^(n - 1).
+    fn penrose(members: &[MemberCounts<Count1024>], i: usize) -> f64 {
+        scaled(members[i].swings, members.len() - 1)
     }
 
     /// Statistical test of the intervals: over 100 seeds, each run of 4,096
@@ -636,8 +635,7 @@ mod tests {
             compound(),
             Rule::weighted(14, vec![9u64, 7, 6, 4, 3, 2, 2, 1, 1]).unwrap(),
         ] {
-            let exact = analyze_with::<_, Count1024>(&rule, Engine::Enumerate).unwrap();
-            let table = exact.table();
+            let exact = exact(&rule, Engine::Enumerate);
             let (mut inside, mut inside_ss, mut total) = (0, 0, 0);
             for seed in 0..100 {
                 let s = Sampling {
@@ -652,9 +650,9 @@ mod tests {
                 assert_eq!(pen.samples, BATCH);
                 for i in 0..rule.members() {
                     let e = pen.members[i];
-                    inside += usize::from((e.value - table.penrose(i)).abs() <= e.half_width);
+                    inside += usize::from((e.value - penrose(&exact, i)).abs() <= e.half_width);
                     let e = ss.members[i];
-                    inside_ss += usize::from((e.value - table.shapley_shubik(i)).abs() <= e.half_width);
+                    inside_ss += usize::from((e.value - exact[i].shapley_shubik).abs() <= e.half_width);
                     total += 1;
                 }
             }
@@ -722,10 +720,10 @@ mod tests {
             }),
         ] {
             let rule = Rule::weighted(q, w).unwrap();
-            let exact = analyze_with::<_, Count1024>(&rule, Engine::Profile).unwrap();
+            let exact = exact(&rule, Engine::Profile);
             let fast = penrose_f64(&rule).unwrap();
             for (i, e) in fast.iter().enumerate() {
-                let truth = exact.table().penrose(i);
+                let truth = penrose(&exact, i);
                 assert!(
                     (e.value - truth).abs() <= e.half_width.max(1e-15),
                     "{i}: {} vs {truth}",

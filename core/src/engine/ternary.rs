@@ -19,8 +19,11 @@
 //!
 //! Both are computed over profiles of member types (identical weights in
 //! every used attribute): Π (c_t + 1)(c_t + 2)/2 profiles weighted by
-//! multinomial coefficients, O(T (atoms + nodes)) each. Counts are exact
-//! in the caller's [`Counter`]; the attendance probability is an `f64`.
+//! multinomial coefficients, O(T (atoms + nodes)) each, at most
+//! [`MAX_PROFILES`] profiles (else [`Error::TooCostly`] before any is
+//! visited); space O(n). Counts are exact in the caller's checked
+//! [`Counter`] (overflow is [`Error::CountOverflow`]); the attendance
+//! probability is an `f64`, summed in logarithms.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or
@@ -33,10 +36,11 @@
 use alloc::vec;
 use alloc::vec::Vec;
 
-use crate::count::{binomial, Counter};
-use crate::engine::profile::group_types;
-use crate::limits::MAX_ATTRIBUTES;
-use crate::{Error, Rule};
+use crate::engine::member_types::Types;
+use crate::model::count::{binomial, Counter};
+use crate::model::error::Error;
+use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::rule::Rule;
 
 /// Most profiles the functions here will visit.
 pub const MAX_PROFILES: u128 = 1 << 32;
@@ -64,40 +68,33 @@ impl<C: Counter> TernaryPower<C> {
     }
 }
 
-struct Types {
-    order: Vec<u32>,
-    starts: Vec<u32>,
-    count: usize,
-}
-
-impl Types {
-    fn of<W: AsRef<[u64]>>(rule: &Rule<W>) -> Types {
-        let n = rule.members();
-        let mut order = vec![0u32; n];
-        let mut starts = vec![0u32; n + 1];
-        let count = group_types(rule, rule.used_attributes(), &mut order, &mut starts);
-        starts.truncate(count + 1);
-        Types { order, starts, count }
+/// Groups the members of `rule` into types (in `order`, n entries, and
+/// `starts`, n + 1), refusing rules of more than [`MAX_PROFILES`]
+/// three-way profiles Π (c_t + 1)(c_t + 2)/2 before any is visited.
+fn grouped<'a, W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    order: &'a mut [u32],
+    starts: &'a mut [u32],
+) -> Result<Types<'a>, Error> {
+    let types = Types::group(rule, rule.used_attributes(), order, starts);
+    let profiles = (0..types.count).fold(1u128, |p, t| {
+        let c = types.size(t) as u128;
+        p.saturating_mul((c + 1) * (c + 2) / 2)
+    });
+    if profiles > MAX_PROFILES {
+        return Err(Error::TooCostly {
+            estimate: profiles,
+            budget: MAX_PROFILES,
+        });
     }
-    fn size(&self, t: usize) -> usize {
-        (self.starts[t + 1] - self.starts[t]) as usize
-    }
-    fn rep(&self, t: usize) -> usize {
-        self.order[self.starts[t] as usize] as usize
-    }
-    fn profiles(&self) -> u128 {
-        (0..self.count).fold(1u128, |p, t| {
-            let c = self.size(t) as u128;
-            p.saturating_mul((c + 1) * (c + 2) / 2)
-        })
-    }
+    Ok(types)
 }
 
 /// Visits every three-way profile (y_t, a_t, n_t) of the types, calling
 /// `visit(digits, yes, no, abstain)` with the group sums of each attribute.
 fn for_each_profile<W: AsRef<[u64]>>(
     rule: &Rule<W>,
-    types: &Types,
+    types: &Types<'_>,
     mut visit: impl FnMut(&[(usize, usize)], &[u64], &[u64], &[u64]) -> Result<(), Error>,
 ) -> Result<(), Error> {
     let attributes = rule.attributes();
@@ -114,7 +111,7 @@ fn for_each_profile<W: AsRef<[u64]>>(
         for a in 0..attributes {
             let (mut y, mut n, mut b) = (0u64, 0u64, 0u64);
             for (t, &(dy, da)) in digits.iter().enumerate() {
-                let w = rule.weight(a, types.rep(t));
+                let w = rule.weight(a, types.representative(t));
                 let c = types.size(t);
                 y += w * dy as u64;
                 b += w * da as u64;
@@ -158,14 +155,8 @@ fn for_each_profile<W: AsRef<[u64]>>(
 /// Exact ternary swing counts of every member.
 pub fn ternary_banzhaf<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<TernaryPower<C>, Error> {
     let n = rule.members();
-    let types = Types::of(rule);
-    let profiles = types.profiles();
-    if profiles > MAX_PROFILES {
-        return Err(Error::TooCostly {
-            estimate: profiles,
-            budget: MAX_PROFILES,
-        });
-    }
+    let (mut order, mut starts) = (vec![0u32; rule.members()], vec![0u32; rule.members() + 1]);
+    let types = grouped(rule, &mut order, &mut starts)?;
     // Binomial tables per type: C(c, k) for k = 0..=c.
     let binoms: Vec<Vec<C>> = (0..types.count)
         .map(|t| {
@@ -193,7 +184,7 @@ pub fn ternary_banzhaf<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<Te
             // Move one yes-voter of type t to no.
             let (mut y2, mut n2) = ([0u64; MAX_ATTRIBUTES], [0u64; MAX_ATTRIBUTES]);
             for a in 0..attributes {
-                let w = rule.weight(a, types.rep(t));
+                let w = rule.weight(a, types.representative(t));
                 y2[a] = yes[a] - w;
                 n2[a] = no[a] + w;
             }
@@ -209,7 +200,7 @@ pub fn ternary_banzhaf<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<Te
     })?;
     let mut swings = vec![C::ZERO; n];
     for t in 0..types.count {
-        for &m in &types.order[types.starts[t] as usize..types.starts[t + 1] as usize] {
+        for &m in types.members(t) {
             swings[m as usize] = per_type[t];
         }
     }
@@ -238,14 +229,8 @@ pub fn passage_with_attendance<W: AsRef<[u64]>>(rule: &Rule<W>, attendance: f64)
             denominator: 1000,
         });
     }
-    let types = Types::of(rule);
-    let profiles = types.profiles();
-    if profiles > MAX_PROFILES {
-        return Err(Error::TooCostly {
-            estimate: profiles,
-            budget: MAX_PROFILES,
-        });
-    }
+    let (mut order, mut starts) = (vec![0u32; rule.members()], vec![0u32; rule.members() + 1]);
+    let types = grouped(rule, &mut order, &mut starts)?;
     let p_yes = attendance / 2.0;
     let p_absent = 1.0 - attendance;
     let mut total = 0.0;
@@ -275,74 +260,32 @@ pub fn passage_with_attendance<W: AsRef<[u64]>>(rule: &Rule<W>, attendance: f64)
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::analyze_with;
-    use crate::{decide_ballot, Ballot, Condition, Engine, Linear, Node, Vote};
+    use crate::engine::{count_allocating, Engine, Scope};
+    use crate::fixtures::{four_state_form, four_state_rules};
+    use crate::model::atom::Condition;
+    use crate::model::ballot::{Ballot, Vote};
+    use crate::model::rule::Node;
     use proptest::prelude::*;
 
-    /// A random rule of up to 7 members over seats and head count mixing
-    /// plain and four-state conditions.
-    fn rule_strategy() -> impl Strategy<Value = Rule<Vec<u64>>> {
-        (
-            1usize..=7,
-            prop::collection::vec(0u64..5, 7),
-            0usize..4,
-            0u64..12,
-            any::<bool>(),
-        )
-            .prop_map(|(n, seats, form, k, both)| {
-                let mut w: Vec<u64> = seats[..n].to_vec();
-                w.extend(core::iter::repeat_n(1u64, n));
-                let total: u64 = seats[..n].iter().sum();
-                let linear = match form {
-                    // seats yes > 1/2 of cast
-                    0 => Linear {
-                        attribute: 0,
-                        yes: 1,
-                        no: -1,
-                        abstain: 0,
-                        bound: 1,
-                    },
-                    // count yes >= 2/3 of present
-                    1 => Linear {
-                        attribute: 1,
-                        yes: 1,
-                        no: -2,
-                        abstain: -2,
-                        bound: 0,
-                    },
-                    // count present >= k (a quorum)
-                    2 => Linear {
-                        attribute: 1,
-                        yes: 1,
-                        no: 1,
-                        abstain: 1,
-                        bound: i128::from(k % (n as u64 + 2)),
-                    },
-                    // seats yes >= 2 * seats no
-                    _ => Linear {
-                        attribute: 0,
-                        yes: 1,
-                        no: -2,
-                        abstain: 0,
-                        bound: 0,
-                    },
-                };
-                let plain = crate::Atom {
-                    attribute: 0,
-                    quota: (total / 3).max(k % 3),
-                };
-                if both {
-                    Rule::with_conditions(
-                        n,
-                        w,
-                        &[Condition::Linear(linear), Condition::Yes(plain)],
-                        &[Node::Atom(0), Node::Atom(1), Node::All(2)],
-                    )
-                    .unwrap()
-                } else {
-                    Rule::with_conditions(n, w, &[Condition::Linear(linear)], &[Node::Atom(0)]).unwrap()
-                }
-            })
+    /// Whether `votes` pass `rule`, condition by condition as a ballot is
+    /// read: an oracle independent of the profile sums.
+    fn passes(rule: &Rule<Vec<u64>>, votes: &[Vote]) -> bool {
+        let ballot = Ballot::<1>::from_votes(votes).unwrap();
+        let mut sums = [[0u64; MAX_ATTRIBUTES]; 3];
+        for (group, out) in [ballot.yes(), ballot.no(), ballot.abstain()]
+            .into_iter()
+            .zip(&mut sums)
+        {
+            rule.yes_sums(group, out).unwrap();
+        }
+        let [yes, no, abstain] = sums;
+        rule.eval(|i| {
+            let a = usize::from(rule.atoms()[i].attribute);
+            match rule.linear(i) {
+                Some(l) => l.holds(yes[a], no[a], abstain[a]),
+                None => yes[a] >= rule.atoms()[i].quota,
+            }
+        })
     }
 
     fn votes_of(mut code: usize, n: usize, states: &[Vote]) -> Vec<Vote> {
@@ -359,7 +302,7 @@ mod tests {
         #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
         /// The profile computation equals a count over all 3^(n-1) ballots of the others.
         #[test]
-        fn ternary_matches_enumeration(rule in rule_strategy()) {
+        fn ternary_matches_enumeration(rule in four_state_rules()) {
             let n = rule.members();
             let fast = ternary_banzhaf::<_, u128>(&rule).unwrap();
             let states = [Vote::Yes, Vote::Abstain, Vote::No];
@@ -372,8 +315,8 @@ mod tests {
                     }
                     let mut other = votes.clone();
                     other[i] = Vote::No;
-                    let pass_yes = decide_ballot(&rule, &Ballot::<1>::from_votes(&votes).unwrap()).unwrap().passed;
-                    let pass_no = decide_ballot(&rule, &Ballot::<1>::from_votes(&other).unwrap()).unwrap().passed;
+                    let pass_yes = passes(&rule, &votes);
+                    let pass_no = passes(&rule, &other);
                     prop_assert!(pass_yes || !pass_no, "monotone in yes votes");
                     count += u128::from(pass_yes && !pass_no);
                 }
@@ -384,13 +327,13 @@ mod tests {
         /// Attendance: the profile sum equals the sum over all 3^n ballots
         /// (yes, no, absent) of their chances.
         #[test]
-        fn attendance_matches_enumeration(rule in rule_strategy(), p in 0.0f64..=1.0) {
+        fn attendance_matches_enumeration(rule in four_state_rules(), p in 0.0f64..=1.0) {
             let n = rule.members();
             let states = [Vote::Yes, Vote::No, Vote::Absent];
             let mut total = 0.0;
             for code in 0..3usize.pow(n as u32) {
                 let votes = votes_of(code, n, &states);
-                if decide_ballot(&rule, &Ballot::<1>::from_votes(&votes).unwrap()).unwrap().passed {
+                if passes(&rule, &votes) {
                     total += votes.iter().map(|v| if *v == Vote::Absent { 1.0 - p } else { p / 2.0 }).product::<f64>();
                 }
             }
@@ -398,23 +341,8 @@ mod tests {
             prop_assert!((fast - total).abs() < 1e-12, "{} vs {}", fast, total);
             // Full attendance is the binary game's probability of passage.
             if p == 1.0 {
-                let binary = analyze_with::<_, u128>(&rule, Engine::Enumerate).unwrap();
-                prop_assert!((fast - binary.rule.passage_probability()).abs() < 1e-12);
-            }
-        }
-
-        /// With no abstentions and no absences every four-state form decides
-        /// like its binary quota.
-        #[test]
-        fn binary_ballots_agree(rule in rule_strategy(), mask in 0u64..128) {
-            let n = rule.members();
-            let yes = crate::Coalition::<1>::from_words([mask & ((1 << n) - 1)]);
-            let four = decide_ballot(&rule, &Ballot::binary(yes, n).unwrap()).unwrap();
-            let two = crate::decide(&rule, &yes).unwrap();
-            prop_assert_eq!(four.passed, two.passed);
-            for (i, (a, b)) in four.tallies.iter().zip(&two.tallies).enumerate() {
-                prop_assert_eq!(a.met, b.met);
-                prop_assert_eq!(a.sides(&rule, i), b.sides(&rule, i));
+                let (binary, _) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+                prop_assert!((fast - binary.passage_probability()).abs() < 1e-12);
             }
         }
     }
@@ -427,13 +355,7 @@ mod tests {
         let rule = Rule::with_conditions(
             3,
             vec![1u64; 3],
-            &[Condition::Linear(Linear {
-                attribute: 0,
-                yes: 1,
-                no: -1,
-                abstain: 0,
-                bound: 1,
-            })],
+            &[Condition::Linear(four_state_form(0, 0))],
             &[Node::Atom(0)],
         )
         .unwrap();

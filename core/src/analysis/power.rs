@@ -4,6 +4,8 @@
 //! [`PowerTable`] turns them into indices. Counts are exact integers; indices
 //! are `f64` computed from them (ratios of huge counts are taken on
 //! mantissa/exponent pairs, so they stay finite for any member count).
+//! Each index is O(1), the normalized ones O(n); no heap, and no integer
+//! arithmetic that could overflow (only `f64` ratios of exact counts).
 //!
 //! Definitions (n members, W winning and L losing coalitions, η_i the swings
 //! of i: winning coalitions that lose without i):
@@ -20,92 +22,8 @@
 //! | Deegan-Packel | (1/|M|) Σ_{S∈M, i∈S} 1/|S|, M = minimal winning coalitions | Deegan & Packel 1978 |
 //! | Holler public good | m_i / Σ m_j, m_i = minimal winning coalitions containing i | Holler 1982 |
 
-use crate::count::{ratio, Counter};
-use crate::Engine;
-
-/// Exact counts for one member.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct MemberCounts<C> {
-    /// Swing count (raw Banzhaf): winning coalitions that lose without this member.
-    pub swings: C,
-    /// Shapley-Shubik index, from exact pivot counts by coalition size.
-    pub shapley_shubik: f64,
-    /// Shapley-Shubik numerator over [`RuleCounts::factorial`] (`n!`), when it fits.
-    pub shapley_shubik_numerator: Option<C>,
-    /// Minimal winning coalitions containing this member (when computed).
-    pub minimal_winning: Option<C>,
-    /// Σ 1/|S| over minimal winning S containing the member, times 2^-n.
-    pub deegan_packel_raw: Option<f64>,
-    /// Σ 1/κ(S) over winning S in which the member is a swing, times 2^-n.
-    pub johnston_raw: Option<f64>,
-    /// The member belongs to every winning coalition.
-    pub veto: bool,
-    /// The member alone wins and is a veto member.
-    pub dictator: bool,
-}
-
-impl<C: Counter> MemberCounts<C> {
-    /// All zero, nothing known.
-    pub const EMPTY: Self = MemberCounts {
-        swings: C::ZERO,
-        shapley_shubik: 0.0,
-        shapley_shubik_numerator: None,
-        minimal_winning: None,
-        deegan_packel_raw: None,
-        johnston_raw: None,
-        veto: false,
-        dictator: false,
-    };
-}
-
-/// Exact counts and properties of the whole rule.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct RuleCounts<C> {
-    /// Number of members n.
-    pub members: usize,
-    /// Winning coalitions W.
-    pub winning: C,
-    /// Losing coalitions L = 2^n - W.
-    pub losing: C,
-    /// Minimal winning coalitions (when computed).
-    pub minimal_winning: Option<C>,
-    /// Minimal blocking coalitions, i.e. complements of maximal losing ones (when computed).
-    pub minimal_blocking: Option<C>,
-    /// Size of a smallest winning coalition; `None` when nothing wins.
-    pub smallest_winning: Option<usize>,
-    /// No two disjoint coalitions both win.
-    pub proper: bool,
-    /// Of every coalition and its complement, at least one wins.
-    pub strong: bool,
-    /// `n!`, the Shapley-Shubik denominator, when it fits in the count type.
-    pub factorial: Option<C>,
-    /// Whether the Shapley-Shubik values were computed (see [`crate::engine::Scope`]).
-    pub shapley_shubik: bool,
-    /// The engine that produced the counts.
-    pub engine: Engine,
-}
-
-impl<C: Counter> RuleCounts<C> {
-    /// Proper and strong: every coalition or its complement wins, never both.
-    pub fn decisive(&self) -> bool {
-        self.proper && self.strong
-    }
-
-    /// Probability of passage (Coleman's power of the collectivity to act):
-    /// W / 2^n, assuming every member votes yes or no independently with
-    /// equal chance.
-    pub fn passage_probability(&self) -> f64 {
-        let (mw, ew) = self.winning.to_f64_parts();
-        // Exponents of counts below 2^(n + 64) and n <= 65,535: far from i32's range.
-        libm::ldexp(mw, ew.saturating_sub(self.members as i32))
-    }
-}
-
-/// `count * 2^-shift` as an `f64`, without forming 2^shift.
-pub(crate) fn scaled<C: Counter>(count: C, shift: usize) -> f64 {
-    let (m, e) = count.to_f64_parts();
-    libm::ldexp(m, e.saturating_sub(shift as i32))
-}
+use crate::engine::{MemberCounts, RuleCounts};
+use crate::model::count::{ratio, scaled, Counter};
 
 /// Indices of all members, from an engine's counts.
 #[derive(Clone, Copy, Debug)]

@@ -2,9 +2,11 @@
 //!
 //! A [`Ballot`] is three disjoint [`Coalition`]s; every member in none of
 //! them is absent. A two-state ballot is the special case with no
-//! abstentions and no absences. O(W) per operation, no heap.
+//! abstentions and no absences. O(W) per operation, no heap; member
+//! indices are checked like [`Coalition`]'s.
 
-use crate::{Coalition, Error};
+use crate::model::coalition::Coalition;
+use crate::model::error::Error;
 
 /// One member's vote.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]

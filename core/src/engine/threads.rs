@@ -5,6 +5,7 @@
 //! depend on this number; it only changes the speed. `CLOUT_THREADS=N`
 //! (a positive integer) overrides the default of every core, which is how
 //! the tests check that the results are bit-identical for any count.
+//! O(1), no heap, no arithmetic.
 
 /// Worker threads: `CLOUT_THREADS` if it holds a positive integer, else the
 /// number of cores (1 if unknown).

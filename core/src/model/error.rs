@@ -1,6 +1,10 @@
 //! The core's single error type: small, `Copy`, never boxed.
+//!
+//! Formatting is O(1) into the caller's formatter; no heap, no arithmetic.
 
 use core::fmt;
+
+use crate::model::engine_id::Engine;
 
 /// Everything that can go wrong in the core.
 ///
@@ -51,7 +55,7 @@ pub enum Error {
     ScratchTooSmall { needed: usize, given: usize },
     /// The chosen engine cannot handle this rule (e.g. too many members to
     /// enumerate, or a compound rule for a single-threshold method).
-    EngineUnsuitable { engine: crate::Engine },
+    EngineUnsuitable { engine: Engine },
     /// The exact computation would take more work than the caller allows.
     TooCostly { estimate: u128, budget: u128 },
     /// A member appears in two groups of a four-state ballot.

@@ -10,7 +10,7 @@
 use core::cmp::Ordering;
 use core::fmt;
 
-use crate::Error;
+use crate::model::error::Error;
 
 /// An exact, non-negative integer with checked arithmetic.
 pub trait Counter: Copy + Clone + Eq + Ord + fmt::Debug + fmt::Display {
@@ -86,6 +86,12 @@ pub fn ratio<C: Counter>(a: C, b: C) -> f64 {
     let (mb, eb) = b.to_f64_parts();
     // Mantissas are in [0.5, 1); exponents of counts are far from i32's ends.
     libm::ldexp(ma / mb, ea.saturating_sub(eb))
+}
+
+/// `count * 2^-shift` as an `f64`, without forming 2^shift.
+pub(crate) fn scaled<C: Counter>(count: C, shift: usize) -> f64 {
+    let (m, e) = count.to_f64_parts();
+    libm::ldexp(m, e.saturating_sub(shift as i32))
 }
 
 fn parts_u128(v: u128) -> (f64, i32) {

@@ -1,9 +1,11 @@
 //! Ballots and coalitions: a fixed-capacity bit set of members.
 //!
 //! `Coalition<W>` holds `64 * W` members in `W` words on the stack; the
-//! default `W = 1` holds 64, the no-alloc capacity. All operations are O(W).
+//! default `W = 1` holds 64, the no-alloc capacity. All operations are O(W),
+//! no heap; a member index at or beyond the capacity is an error, never a
+//! wrap.
 
-use crate::Error;
+use crate::model::error::Error;
 
 /// A set of members (the yes-voters of a ballot, or a coalition).
 #[derive(Clone, Copy, PartialEq, Eq, Hash, Debug)]

@@ -1,7 +1,8 @@
 //! Every fixed limit of the core, in one table.
 //!
 //! The same constants drive the checks in [`crate::Rule::new`] and the
-//! documentation, so a limit is stated before it is hit.
+//! documentation, so a limit is stated before it is hit. Constants only:
+//! no time, space or arithmetic of their own.
 
 /// Most members a rule may have.
 ///

@@ -1,14 +1,19 @@
 //! Allocating convenience layer (`alloc` feature): plan, allocate scratch,
 //! count, and keep the results together.
+//!
+//! Time and memory are the chosen engine's, within [`Options::budget`]
+//! steps and [`Options::memory`] bytes as estimated before anything is
+//! allocated; this layer adds O(n) for the result vector. Counts are exact
+//! in the caller's [`Counter`] (overflow is [`Error::CountOverflow`]).
 
-use alloc::vec;
 use alloc::vec::Vec;
 
-use crate::count::Counter;
-use crate::engine::{self, Engine, Scope, Workspace};
-use crate::planner::{plan_within, Limits, Plan, DEFAULT_BUDGET, DEFAULT_MEMORY};
-use crate::power::{MemberCounts, PowerTable, RuleCounts};
-use crate::{Error, Rule};
+use crate::analysis::planner::{plan_within, Limits, Plan, DEFAULT_BUDGET, DEFAULT_MEMORY};
+use crate::analysis::power::PowerTable;
+use crate::engine::{self, Engine, MemberCounts, RuleCounts, Scope};
+use crate::model::count::Counter;
+use crate::model::error::Error;
+use crate::model::rule::Rule;
 
 /// Exact counts for a rule and its members, with the plan that made them.
 #[derive(Clone, Debug)]
@@ -106,8 +111,8 @@ pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
                 });
             }
             let needed = engine::memory_for(rule, engine, options.scope, limits.count_bytes)?;
-            if needed > options.memory && engine != Engine::Diagram {
-                // The diagram's estimate is an upper bound; it checks its real size itself.
+            if needed > options.memory && !engine.checks_own_memory() {
+                // Such an engine's estimate is an upper bound; it checks its real size itself.
                 return Err(Error::MemoryLimit {
                     needed,
                     limit: options.memory,
@@ -116,15 +121,7 @@ pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
             p
         }
     };
-    let need = engine::need_for(rule, plan.engine, options.scope)?;
-    let mut counts = vec![C::ZERO; need.counts];
-    let mut indices = vec![0u32; need.indices];
-    let mut members = vec![MemberCounts::EMPTY; rule.members()];
-    let work = Workspace {
-        counts: &mut counts,
-        indices: &mut indices,
-    };
-    let totals = engine::try_count_for(rule, plan.engine, options.scope, &mut members, work)?;
+    let (totals, members) = engine::count_allocating(rule, plan.engine, options.scope)?;
     Ok(Analysis {
         rule: totals,
         members,

@@ -3,10 +3,15 @@
 //! [`decide`] is O(n_yes * attributes_used + nodes); [`critical`] is
 //! O(n * (atoms + nodes)) after one tally. Neither allocates; the largest
 //! stack object is the per-attribute sum array (`8 * MAX_ATTRIBUTES` bytes)
-//! plus the tallies in [`Decision`].
+//! plus the tallies in [`Decision`]. Sums cannot overflow: every
+//! attribute's total was checked when the rule was built, and four-state
+//! conditions are evaluated exactly in `i128`.
 
-use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES};
-use crate::{Ballot, Coalition, Error, Rule};
+use crate::model::ballot::Ballot;
+use crate::model::coalition::Coalition;
+use crate::model::error::Error;
+use crate::model::limits::{MAX_ATOMS, MAX_ATTRIBUTES};
+use crate::model::rule::Rule;
 
 /// One condition's tally in an actual vote.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -176,4 +181,29 @@ pub fn critical<W: AsRef<[u64]>, const B: usize>(
         }
     }
     Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fixtures::four_state_rules;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
+        /// With no abstentions and no absences every four-state form decides
+        /// like its binary quota.
+        #[test]
+        fn binary_ballots_agree(rule in four_state_rules(), mask in 0u64..128) {
+            let n = rule.members();
+            let yes = Coalition::<1>::from_words([mask & ((1 << n) - 1)]);
+            let four = decide_ballot(&rule, &Ballot::binary(yes, n).unwrap()).unwrap();
+            let two = decide(&rule, &yes).unwrap();
+            prop_assert_eq!(four.passed, two.passed);
+            for (i, (a, b)) in four.tallies.iter().zip(&two.tallies).enumerate() {
+                prop_assert_eq!(a.met, b.met);
+                prop_assert_eq!(a.sides(&rule, i), b.sides(&rule, i));
+            }
+        }
+    }
 }

@@ -6,113 +6,21 @@
 //! atoms and formula live in fixed-capacity vectors of
 //! [`MAX_ATOMS`](crate::limits::MAX_ATOMS) and [`MAX_NODES`](crate::limits::MAX_NODES).
 //! Evaluating the formula is O(nodes) time with a 128-bit stack; no heap.
+//! Building a rule is O(members * attributes + nodes).
+//!
+//! Overflow: every attribute's total is summed with checked arithmetic when
+//! the rule is built and refused above
+//! [`MAX_TOTAL`](crate::limits::MAX_TOTAL), so no sum over any coalition can
+//! overflow afterwards.
 //!
 //! Monotonicity: there is no negation in the IR and every atom is a lower
 //! bound on a sum of non-negative weights, so every rule that can be built is
 //! monotone (adding a yes vote never turns a pass into a fail).
 
-use crate::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES, MAX_TOTAL};
-use crate::{Coalition, Error};
-
-/// One threshold condition: the sum of `attribute` over the yes-voters is at
-/// least `quota`.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-pub struct Atom {
-    /// Index of the weight attribute.
-    pub attribute: u16,
-    /// The least sum that meets the condition.
-    pub quota: u64,
-}
-
-/// A condition over the four groups of a ballot, on one attribute:
-/// `yes * Y + no * N + abstain * A >= bound`, where Y, N and A are the
-/// attribute's sums over the members voting yes, voting no and abstaining
-/// (absent members count in none).
-///
-/// "More yes than no" is `Y - N >= 1`; "two thirds of those present and
-/// voting" is `3Y >= 2(Y + N)`, i.e. `Y - 2N >= 0`; a quorum "a third of all
-/// seats present" is `Y + N + A >= ceil(T / 3)`. Monotone in yes votes
-/// (switching any member to yes never defeats the motion) exactly when
-/// `yes >= no`, `yes >= abstain` and `yes >= 0`; anything else is
-/// [`Error::NonMonotone`]. Arithmetic is exact in `i128`.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-pub struct Linear {
-    /// Index of the weight attribute.
-    pub attribute: u16,
-    /// Coefficient of the yes-sum.
-    pub yes: i32,
-    /// Coefficient of the no-sum.
-    pub no: i32,
-    /// Coefficient of the abstain-sum.
-    pub abstain: i32,
-    /// Right-hand side.
-    pub bound: i128,
-}
-
-impl Linear {
-    /// Whether switching any member to yes can never defeat the condition.
-    pub fn check_monotone(&self) -> Result<(), Error> {
-        if self.yes >= self.no && self.yes >= self.abstain && self.yes >= 0 {
-            Ok(())
-        } else {
-            Err(Error::NonMonotone)
-        }
-    }
-
-    /// Left-hand side for the given group sums.
-    pub fn lhs(&self, yes: u64, no: u64, abstain: u64) -> i128 {
-        // |coefficient| <= 2^31 and sums < 2^64: each product is below 2^95
-        // and the sum below 2^97, so saturation never happens.
-        let term = |c: i32, s: u64| i128::from(c).saturating_mul(i128::from(s));
-        term(self.yes, yes)
-            .saturating_add(term(self.no, no))
-            .saturating_add(term(self.abstain, abstain))
-    }
-
-    /// Whether the condition holds for the given group sums.
-    pub fn holds(&self, yes: u64, no: u64, abstain: u64) -> bool {
-        self.lhs(yes, no, abstain) >= self.bound
-    }
-
-    /// The least yes-sum that meets the condition when every member is
-    /// present and votes yes or no (N = total - Y, A = 0): the binary game
-    /// the power indices measure. `total + 1` when no yes-sum meets it.
-    pub fn binary_quota(&self, total: u64) -> u64 {
-        // yes*Y + no*(T - Y) >= bound  <=>  (yes - no) Y >= bound - no*T
-        let d = i128::from(self.yes).saturating_sub(i128::from(self.no));
-        // A bound near +-2^127 saturates here; the quota is clamped to
-        // 0..=total + 1 below either way, which saturation cannot change
-        // (|need| >= 2^126 while d < 2^33 and total < 2^64).
-        let need = self
-            .bound
-            .saturating_sub(i128::from(self.no).saturating_mul(i128::from(total)));
-        let never = u128::from(total).saturating_add(1);
-        let q: i128 = if d <= 0 {
-            if need <= 0 {
-                0
-            } else {
-                never as i128
-            }
-        } else {
-            // ceil(need / d) for any sign of need
-            let q = need
-                .div_euclid(d)
-                .saturating_add(i128::from(need.rem_euclid(d) != 0));
-            q.clamp(0, never as i128)
-        };
-        u64::try_from(q).unwrap_or(u64::MAX)
-    }
-}
-
-/// One condition of a rule as written: a plain yes-sum threshold or a
-/// four-state linear condition.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-pub enum Condition {
-    /// The sum over the yes-voters reaches the quota.
-    Yes(Atom),
-    /// A linear condition over the yes, no and abstain sums.
-    Linear(Linear),
-}
+use crate::model::atom::{Atom, Condition, Linear};
+use crate::model::coalition::Coalition;
+use crate::model::error::Error;
+use crate::model::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_DEPTH, MAX_MEMBERS, MAX_NODES, MAX_TOTAL};
 
 /// One node of a formula in postfix order.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -588,75 +496,10 @@ mod tests {
     }
 
     #[test]
-    fn binary_quotas_of_linear_forms() {
-        // seats yes > 1/2 of cast: 2Y > Y + N  <=>  Y - N >= 1; with T = 115,
-        // Y - (115 - Y) >= 1  <=>  Y >= 58 = "more than half of 115".
-        let l = Linear {
-            attribute: 0,
-            yes: 1,
-            no: -1,
-            abstain: 0,
-            bound: 1,
-        };
-        assert_eq!(l.binary_quota(115), 58);
-        assert_eq!(l.binary_quota(100), 51);
-        // count yes >= 2/3 of present: 3Y >= 2(Y + N + A)  <=>  Y - 2N - 2A >= 0;
-        // binary: 3Y >= 2T, T = 27: Y >= 18.
-        let l = Linear {
-            attribute: 0,
-            yes: 1,
-            no: -2,
-            abstain: -2,
-            bound: 0,
-        };
-        assert_eq!(l.binary_quota(27), 18);
-        // count present >= 9 (a quorum): everyone is present in the binary game.
-        let l = Linear {
-            attribute: 0,
-            yes: 1,
-            no: 1,
-            abstain: 1,
-            bound: 9,
-        };
-        assert_eq!(l.binary_quota(27), 0);
-        assert_eq!(l.binary_quota(5), 6); // 5 members can never make a quorum of 9
-                                          // Not monotone: a yes vote weighs less than a no vote.
-        let l = Linear {
-            attribute: 0,
-            yes: -1,
-            no: 0,
-            abstain: 0,
-            bound: -3,
-        };
-        assert_eq!(l.check_monotone(), Err(Error::NonMonotone));
-    }
-
-    #[test]
     fn evaluates_and_or() {
         // seats: 3,2,1 ; heads: 1,1,1. (seats >= 4 and heads >= 2) or seats >= 6
         let w = [3u64, 2, 1, 1, 1, 1];
-        let atoms = [
-            Atom {
-                attribute: 0,
-                quota: 4,
-            },
-            Atom {
-                attribute: 1,
-                quota: 2,
-            },
-            Atom {
-                attribute: 0,
-                quota: 6,
-            },
-        ];
-        let f = [
-            Node::Atom(0),
-            Node::Atom(1),
-            Node::All(2),
-            Node::Atom(2),
-            Node::Any(2),
-        ];
-        let r = Rule::new(3, &w[..], &atoms, &f).unwrap();
+        let r = crate::fixtures::two_tier(3, &w[..], [4, 2, 6]).unwrap();
         let p = |m: &[usize]| r.passes(&Coalition::<1>::from_members(m).unwrap()).unwrap();
         assert!(p(&[0, 1]));
         assert!(p(&[0, 2]));
