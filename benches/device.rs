@@ -5,7 +5,7 @@
 
 use std::hint::black_box;
 
-use clout::{decide, image, scenarios, Atom, Node, Rule};
+use clout::{decide, image, scenarios, Rule};
 use clout_c::{
     clout_decide, clout_decide_members, clout_outcome, clout_result, clout_rule_load, clout_rule_words,
 };
@@ -23,17 +23,8 @@ fn double_majority_27() -> Rule<Vec<u64>> {
     let total: u64 = populations.iter().sum();
     let mut w = vec![1u64; 27];
     w.extend(&populations);
-    let atoms = [
-        Atom {
-            attribute: 0,
-            quota: 15,
-        },
-        Atom {
-            attribute: 1,
-            quota: clout::quota::at_least_share(65, 100, total).expect("share"),
-        },
-    ];
-    Rule::new(27, w, &atoms, &[Node::Atom(0), Node::Atom(1), Node::All(2)]).expect("valid rule")
+    let quota = clout::quota::at_least_share(65, 100, total).expect("share");
+    clout::fixtures::double_majority(27, w, [15, quota]).expect("valid rule")
 }
 
 fn decide_27(c: &mut Criterion) {

@@ -89,37 +89,7 @@ pub fn union_27_populations() -> Vec<u64> {
 /// union-27: (at least 15 of 27 members and at least 65% of the population)
 /// or fewer than 4 members against.
 pub fn union_27() -> Rule<Vec<u64>> {
-    let pop = union_27_populations();
-    let total: u64 = pop.iter().sum();
-    let mut w = vec![1u64; 27];
-    w.extend(&pop);
-    let atoms = [
-        Atom {
-            attribute: 0,
-            quota: 15,
-        },
-        Atom {
-            attribute: 1,
-            quota: crate::quota::at_least_share(65, 100, total).expect("share"),
-        },
-        Atom {
-            attribute: 0,
-            quota: crate::quota::against(
-                crate::quota::Comparison::LessThan,
-                crate::quota::Bound::Amount(4),
-                27,
-            )
-            .expect("quota"),
-        },
-    ];
-    let f = [
-        Node::Atom(0),
-        Node::Atom(1),
-        Node::All(2),
-        Node::Atom(2),
-        Node::Any(2),
-    ];
-    Rule::new(27, w, &atoms, &f).expect("valid scenario")
+    union_prefix(27)
 }
 
 /// `count` pseudo-random ballots over `n` members, each member voting yes
@@ -165,33 +135,22 @@ pub fn token_10000() -> Rule<Vec<u64>> {
 }
 
 /// The first `n` members of union-27 under the same rule shape (for
-/// extrapolating enumeration time).
+/// extrapolating enumeration time): at least 15/27 of the members and 65%
+/// of their population, or at most 3 against.
 pub fn union_prefix(n: usize) -> Rule<Vec<u64>> {
     let pop: Vec<u64> = union_27_populations().into_iter().take(n).collect();
     let total: u64 = pop.iter().sum();
     let mut w = vec![1u64; n];
     w.extend(&pop);
-    let count_quota = (15 * n as u64).div_ceil(27);
-    let atoms = [
-        Atom {
-            attribute: 0,
-            quota: count_quota,
-        },
-        Atom {
-            attribute: 1,
-            quota: crate::quota::at_least_share(65, 100, total).expect("share"),
-        },
-        Atom {
-            attribute: 0,
-            quota: (n as u64).saturating_sub(3),
-        },
+    let quotas = [
+        (15 * n as u64).div_ceil(27),
+        crate::quota::at_least_share(65, 100, total).expect("share"),
+        crate::quota::against(
+            crate::quota::Comparison::LessThan,
+            crate::quota::Bound::Amount(4),
+            n as u64,
+        )
+        .expect("quota"),
     ];
-    let f = [
-        Node::Atom(0),
-        Node::Atom(1),
-        Node::All(2),
-        Node::Atom(2),
-        Node::Any(2),
-    ];
-    Rule::new(n, w, &atoms, &f).expect("valid scenario")
+    crate::fixtures::two_tier(n, w, quotas).expect("valid scenario")
 }

@@ -1,36 +1,14 @@
 //! Deciding actual votes, critical members, caller scratch and overflow.
 
 use clout::engine::{self, Workspace};
-use clout::{critical, decide, Atom, Coalition, Count1024, Engine, Error, MemberCounts, Node, Rule};
+use clout::fixtures::{seats_and_heads, two_tier};
+use clout::{critical, decide, Coalition, Count1024, Engine, Error, MemberCounts, Rule};
 use proptest::prelude::*;
 
 /// A fictional board: seats 5,4,3,2,1 and head count; passes with
 /// (seats >= 9 and count >= 3) or seats >= 12.
 fn board() -> Rule<Vec<u64>> {
-    let mut w = vec![5, 4, 3, 2, 1];
-    w.extend([1u64; 5]);
-    let atoms = [
-        Atom {
-            attribute: 0,
-            quota: 9,
-        },
-        Atom {
-            attribute: 1,
-            quota: 3,
-        },
-        Atom {
-            attribute: 0,
-            quota: 12,
-        },
-    ];
-    let f = [
-        Node::Atom(0),
-        Node::Atom(1),
-        Node::All(2),
-        Node::Atom(2),
-        Node::Any(2),
-    ];
-    Rule::new(5, w, &atoms, &f).unwrap()
+    two_tier(5, seats_and_heads(&[5, 4, 3, 2, 1]), [9, 3, 12]).unwrap()
 }
 
 fn ballot(m: &[usize]) -> Coalition<1> {

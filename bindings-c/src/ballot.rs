@@ -335,7 +335,8 @@ fn critical_with<const B: usize>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use clout_core::{image, Atom, Node, Rule};
+    use clout_core::fixtures::double_majority;
+    use clout_core::image;
 
     /// Deciding through the C ABI gives the core's `decide` outcome and
     /// tallies, on a 27-member double majority and on 1,000 ballots.
@@ -345,17 +346,7 @@ mod tests {
         let mut w = vec![1u64; n];
         w.extend((0..n as u64).map(|i| 1_000_000 + i * i * 37_000));
         let total: u64 = w[n..].iter().sum();
-        let atoms = [
-            Atom {
-                attribute: 0,
-                quota: 15,
-            },
-            Atom {
-                attribute: 1,
-                quota: (total * 65).div_ceil(100),
-            },
-        ];
-        let source = Rule::new(n, w, &atoms, &[Node::Atom(0), Node::Atom(1), Node::All(2)]).unwrap();
+        let source = double_majority(n, w, [15, (total * 65).div_ceil(100)]).unwrap();
         let bytes = image::encode(&source);
         let mut handle = core::ptr::null_mut();
         assert_eq!(

@@ -10,8 +10,9 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
+use clout_core::fixtures::{four_state_form, seats_and_heads, two_tier};
 use clout_core::image::{self, crc32, CHECKSUM_LEN};
-use clout_core::{Atom, Condition, Linear, Node, Rule};
+use clout_core::{Atom, Condition, Node, Rule};
 
 fn manifest_dir() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -115,18 +116,7 @@ fn eec() -> Rule<Vec<u64>> {
 /// A fictional allotment board of five plots: seats 3, 2, 2, 1, 1; a motion
 /// passes with (at least 5 seats and at least 3 plots) or at least 8 seats.
 fn allotment_board() -> Rule<Vec<u64>> {
-    let seats = [3u64, 2, 2, 1, 1];
-    let mut w = seats.to_vec();
-    w.extend([1u64; 5]);
-    let atoms = [atom(0, 5), atom(1, 3), atom(0, 8)];
-    let f = [
-        Node::Atom(0),
-        Node::Atom(1),
-        Node::All(2),
-        Node::Atom(2),
-        Node::Any(2),
-    ];
-    Rule::new(5, w, &atoms, &f).unwrap()
+    two_tier(5, seats_and_heads(&[3, 2, 2, 1, 1]), [5, 3, 8]).unwrap()
 }
 
 /// Every image the C programs read, by file name.
@@ -147,13 +137,7 @@ fn images() -> Vec<(&'static str, Vec<u8>)> {
     let costly = Rule::weighted(quota, costly).unwrap();
 
     // "More yes than no" as a four-state condition over weights 2, 1, 1.
-    let majority = Linear {
-        attribute: 0,
-        yes: 1,
-        no: -1,
-        abstain: 0,
-        bound: 1,
-    };
+    let majority = four_state_form(0, 0);
     let present = Rule::with_conditions(
         3,
         vec![2u64, 1, 1],

@@ -6,7 +6,8 @@ use clout_c::{
     clout_decide_votes, clout_group_sums, clout_outcome, clout_result, clout_rule, clout_rule_free,
     clout_rule_new,
 };
-use clout_core::{decide_ballot, image, Atom, Ballot, Condition, Linear, Node, Rule, Vote};
+use clout_core::fixtures::{four_state_form, four_state_rule};
+use clout_core::{decide_ballot, image, Ballot, Node, Rule, Vote};
 use proptest::prelude::*;
 
 const VOTES: [Vote; 4] = [Vote::Absent, Vote::Yes, Vote::No, Vote::Abstain];
@@ -19,49 +20,10 @@ fn rule_strategy() -> impl Strategy<Value = Rule<Vec<u64>>> {
         0u64..20,
     )
         .prop_map(|(n, seats, form, k)| {
-            let mut w: Vec<u64> = seats[..n].to_vec();
-            w.extend(std::iter::repeat_n(1u64, n));
-            let linear = match form {
-                0 => Linear {
-                    attribute: 0,
-                    yes: 1,
-                    no: -1,
-                    abstain: 0,
-                    bound: 1,
-                },
-                1 => Linear {
-                    attribute: 1,
-                    yes: 1,
-                    no: -2,
-                    abstain: -2,
-                    bound: 0,
-                },
-                2 => Linear {
-                    attribute: 1,
-                    yes: 1,
-                    no: 1,
-                    abstain: 1,
-                    bound: i128::from(k % (n as u64 + 1)) + 1,
-                },
-                _ => Linear {
-                    attribute: 0,
-                    yes: 2,
-                    no: -3,
-                    abstain: 0,
-                    bound: 0,
-                },
-            };
-            let plain = Atom {
-                attribute: 0,
-                quota: seats[..n].iter().sum::<u64>() / 3,
-            };
-            Rule::with_conditions(
-                n,
-                w,
-                &[Condition::Linear(linear), Condition::Yes(plain)],
-                &[Node::Atom(0), Node::Atom(1), Node::Any(2)],
-            )
-            .expect("valid rule")
+            let seats = &seats[..n];
+            let form = four_state_form(form, i128::from(k % (n as u64 + 1)) + 1);
+            let plain = (Node::Any(2), seats.iter().sum::<u64>() / 3);
+            four_state_rule(seats, form, Some(plain)).expect("valid rule")
         })
 }
 

@@ -60,7 +60,7 @@ impl Input {
             }),
             Err(errors) => {
                 let mut text = render_all(&errors, &name, &source);
-                let n = errors.len();
+                let n = clout_dsl::error_count(&errors);
                 text.push_str(&format!("{n} error{} in {name}\n", if n == 1 { "" } else { "s" }));
                 Err(Failure::rendered(text))
             }

@@ -505,3 +505,18 @@ fn help_and_version_exit_0() {
     }
     assert_eq!(clout(&["--version"]).code, 0);
 }
+
+#[test]
+fn the_error_heading_counts_shown_and_elided_errors() {
+    // 150 syntax errors: 100 are shown, a note counts the other 50, and the
+    // last line counts all 150 (not the 101 diagnostics printed).
+    let mut src = String::from("member a seats=2\nmember b seats=1\n");
+    for k in 0..150 {
+        src.push_str(&format!("rule r{k:03} = seats >> 1\n"));
+    }
+    let run = clout_with_input(&["check", "-"], &src);
+    assert_eq!(run.code, 2);
+    assert_eq!(run.stderr.matches(": error: ").count(), 100);
+    assert!(run.stderr.contains("50 more errors not shown"), "{}", run.stderr);
+    assert!(run.stderr.ends_with("150 errors in <stdin>\n"), "{}", run.stderr);
+}

@@ -567,3 +567,25 @@ fn fuzz_seed_corpus_passes_every_target() {
 fn fuzz_regressions_pass_every_target() {
     replay("regressions");
 }
+
+/// 15,000 chained blocs (`bloc b0 = b1`, `bloc b1 = b2`, ...): `clout check`
+/// once aborted with a stack overflow (exit 134). It must check the file
+/// cleanly (exit 0) well before a deadline generous for a debug build.
+#[test]
+fn a_long_chain_of_blocs_checks_cleanly() {
+    let _turn = SERIAL.lock().unwrap_or_else(|e| e.into_inner());
+    let dir = std::env::temp_dir().join(format!("clout-chain-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let mut text = String::from("member a seats=1\nmember b seats=1\n");
+    for i in 0..15_000 {
+        text.push_str(&format!("bloc b{i} = b{}\n", i + 1));
+    }
+    text.push_str("bloc b15000 = a, b\nrule r = b0\n");
+    let path = dir.join("bloc-chain-15000.clout");
+    std::fs::write(&path, text).expect("writable");
+    let path = path.to_string_lossy().into_owned();
+    let r = run_within(&["check", &path], Duration::from_secs(60));
+    assert_eq!(r.code, Some(0), "{:.500}", r.stderr);
+    eprintln!("bloc-chain-15000: {:?}", r.elapsed);
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -328,3 +328,106 @@ fn the_command_line_keeps_a_forced_engine_to_the_budget() {
     assert!(stderr.contains("over the budget of 10"), "{stderr}");
     assert!(out.stdout.is_empty());
 }
+
+/// The compiler on inputs whose size once drove its depth or its time
+/// (issue 20): 15,000 chained blocs overflowed the stack (a recursion per
+/// link); a bloc of 200,000 parts took minutes (each part compared with
+/// every earlier one). Both must finish with correct figures or a clear
+/// error, quickly, on a test thread's stack.
+#[test]
+fn long_bloc_chains_and_wide_blocs() {
+    // bloc b0 = b1, bloc b1 = b2, ..., bloc b15000 = a, b: every bloc is {a, b}.
+    let mut chain = String::from("member a seats=2\nmember b seats=1\nmember c seats=1\n");
+    for i in 0..15_000 {
+        chain.push_str(&format!("bloc b{i} = b{}\n", i + 1));
+    }
+    chain.push_str("bloc b15000 = a, b\nrule r = b0 and seats > 1/2\n");
+    let f = clout_dsl::compile(&chain).expect("the chain compiles");
+    assert_eq!(f.blocs.len(), 15_001);
+    assert!(f.blocs.iter().all(|b| b.members == [0, 1]));
+    let r = f.rule(None).unwrap();
+    // `b0` needs both of its members; more than half of 4 seats is 3.
+    assert_eq!(r.rule.atoms().iter().map(|a| a.quota).collect::<Vec<_>>(), [2, 3]);
+
+    // A bloc of 200,000 distinct parts: 50,000 members and 150,000 one-member blocs.
+    let mut wide = String::from("members m x50000 seats=1\n");
+    for i in 0..150_000 {
+        wide.push_str(&format!("bloc c{i} = m{}\n", i % 50_000 + 1));
+    }
+    let parts: Vec<String> = (1..=50_000)
+        .map(|i| format!("m{i}"))
+        .chain((0..150_000).map(|i| format!("c{i}")))
+        .collect();
+    wide.push_str(&format!("bloc all = {}\nrule r = 2/3 of all\n", parts.join(", ")));
+    let f = clout_dsl::compile(&wide).expect("the wide bloc compiles");
+    let all = f.blocs.iter().find(|b| b.name == "all").unwrap();
+    assert_eq!(all.members, (0..50_000).collect::<Vec<_>>());
+    assert_eq!(f.rule(None).unwrap().rule.atoms()[0].quota, 33_334);
+
+    // 200,000 parts, each of 50,000 members listed four times: 150,000 repeats,
+    // each an error (100 shown, the rest counted).
+    let repeats: Vec<String> = (0..200_000).map(|i| format!("m{}", i % 50_000 + 1)).collect();
+    let source = format!(
+        "members m x50000\nbloc all = {}\nrule r = all\n",
+        repeats.join(", ")
+    );
+    let errors = clout_dsl::compile(&source).unwrap_err();
+    assert_eq!(clout_dsl::diagnostic::error_count(&errors), 150_000);
+    assert_eq!(errors[0].message, "`m1` is listed twice in bloc `all`");
+    assert_eq!(errors[100].message, "149900 more errors not shown");
+}
+
+#[test]
+fn entries_of_all_blocs() {
+    use clout_dsl::compile::MAX_BLOC_ENTRIES;
+    // 64 blocs of the whole group (64 * 65,535 entries) and one of 64 members:
+    // exactly the limit; one member more is past it.
+    let blocs = |extra: usize| {
+        let mut s = String::from("members g x65535\n");
+        for i in 0..64 {
+            s.push_str(&format!("bloc c{i} = g\n"));
+        }
+        let last: Vec<String> = (1..=64 + extra).map(|i| format!("g{i}")).collect();
+        s.push_str(&format!("bloc z = {}\nrule r = count > 1/2\n", last.join(", ")));
+        s
+    };
+    assert_eq!(64 * 65_535 + 64, MAX_BLOC_ENTRIES);
+    assert!(clout_dsl::compile(&blocs(0)).is_ok());
+    assert_eq!(
+        first_error(&blocs(1)),
+        "66:321: the blocs of the file list more than 4194304 members in all"
+    );
+}
+
+#[test]
+fn four_state_share_of_the_largest_total() {
+    // p/q of a total near 2^64 with p and q near 2^64: p * T is near 2^128,
+    // beyond i128; it is taken exactly (it once overflowed).
+    let source = "member a w=18446744073709551611\nmember b w=1\n\
+        rule r = w yes >= 18446744073709551615/18446744073709551615\n";
+    let f = clout_dsl::compile(source).expect("compiles");
+    let l = f
+        .rule(None)
+        .unwrap()
+        .rule
+        .linear(0)
+        .expect("a four-state condition");
+    assert_eq!(
+        (l.yes, l.no, l.abstain, l.bound),
+        (1, 0, 0, i128::from(MAX_TOTAL))
+    );
+}
+
+#[test]
+fn syntax_errors_per_file() {
+    // Every syntax error is found (parsing goes on at the next declaration),
+    // 100 are kept and the rest counted, so memory stays bounded.
+    let mut source = String::from("member a seats=2\nmember b seats=1\n");
+    for k in 0..50_000 {
+        source.push_str(&format!("rule r{k} = seats >> 1\n"));
+    }
+    let errors = clout_dsl::compile(&source).unwrap_err();
+    assert_eq!(errors.len(), clout_dsl::diagnostic::MAX_DIAGNOSTICS + 1);
+    assert_eq!(clout_dsl::error_count(&errors), 50_000);
+    assert_eq!(errors[100].message, "49900 more errors not shown");
+}

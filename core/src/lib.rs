@@ -9,13 +9,22 @@
 //!   "fewer than 4 against" into exact integer quotas.
 //! * [`decide`] and [`critical`]: the outcome of one vote, its tallies, and
 //!   the members whose switch would flip it. No heap, nanoseconds.
-//! * [`engine`]: exact swing counts and pivot counts by three engines
-//!   (enumeration, type profiles, capped generating functions), chosen by
-//!   [`planner::plan`] or forced by the caller.
+//! * [`engine`]: exact swing counts and pivot counts by four engines
+//!   (enumeration, type profiles, capped generating functions, decision
+//!   diagrams) behind one interface, chosen by [`planner::plan`] or forced
+//!   by the caller; `approx` and `ternary` (feature `alloc`) beside them.
 //! * [`PowerTable`]: every standard index from those counts (normalized and
 //!   absolute Banzhaf, Shapley-Shubik, Coleman, Johnston, Deegan-Packel,
 //!   Holler) and the dummy / veto / dictator flags; [`RuleCounts`] for
 //!   winning coalitions, passage probability, proper / strong / decisive.
+//!
+//! ## Layout
+//! The source folders follow the data: `model/` (rules, atoms, quotas,
+//! coalitions, ballots, limits, counts, errors), `engine/` (the engines and
+//! their registry), `analysis/` (planner, indices, the allocating layer)
+//! and `device/` (deciding ballots, rule images). Each imports only from
+//! the folders before it; the device side from the model alone. The public
+//! paths are the re-exports below.
 //!
 //! ## Model
 //! Indices measure a priori power: every member votes yes or no
@@ -86,37 +95,33 @@
 #[cfg(feature = "alloc")]
 extern crate alloc;
 
-mod ballot;
-mod coalition;
-pub mod count;
-mod decide;
-pub mod engine;
-mod error;
-pub mod image;
-pub mod limits;
-pub mod planner;
-mod power;
-pub mod quota;
-mod rule;
-
-#[cfg(feature = "alloc")]
+// The stages: model -> engine -> analysis, and the device side beside them.
+// Each imports only from the stages before it, the device side from the
+// model alone (each folder's mod.rs states its rule; `tests/layers.rs`
+// checks them).
 mod analysis;
-#[cfg(feature = "alloc")]
-pub mod approx;
-#[cfg(feature = "alloc")]
-pub mod ternary;
-#[cfg(feature = "std")]
-pub mod threads;
+mod device;
+pub mod engine;
+#[cfg(any(test, feature = "fixtures"))]
+pub mod fixtures;
+mod model;
 
-pub use ballot::{Ballot, Vote};
-pub use coalition::{Coalition, Members};
-pub use count::{Count1024, Counter, Wide};
-pub use decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
-pub use engine::Engine;
-pub use error::Error;
-pub use image::{ImageError, ImageInfo};
-pub use power::{MemberCounts, PowerTable, RuleCounts};
-pub use rule::{Atom, Condition, Linear, Node, Rule};
-
+// Public paths, unchanged by the folders above.
+pub use analysis::planner;
+pub use analysis::PowerTable;
 #[cfg(feature = "alloc")]
 pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};
+pub use device::decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
+pub use device::image;
+pub use device::image::{ImageError, ImageInfo};
+#[cfg(feature = "alloc")]
+pub use engine::approx;
+#[cfg(feature = "alloc")]
+pub use engine::ternary;
+#[cfg(feature = "std")]
+pub use engine::threads;
+pub use engine::{Engine, MemberCounts, RuleCounts};
+pub use model::{count, limits, quota};
+pub use model::{
+    Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, Vote, Wide,
+};

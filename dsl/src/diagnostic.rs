@@ -141,7 +141,12 @@ impl Diagnostic {
     /// aligned), and a line longer than [`LINE_WINDOW`] characters is cut to
     /// a window around the span, marked with `...`.
     pub fn render(&self, file: &str, source: &str) -> String {
-        let (line, col) = self.line_col(source);
+        self.render_with(file, source, &LineStarts::new(source))
+    }
+
+    /// [`Self::render`] with the line starts of `source` already found.
+    fn render_with(&self, file: &str, source: &str, lines: &LineStarts) -> String {
+        let (line, col) = lines.line_col(source, self.span.start);
         let mut out = format!(
             "{file}:{line}:{col}: {}: {}\n",
             self.severity.label(),
@@ -192,17 +197,119 @@ pub const MAX_DIAGNOSTICS: usize = 100;
 
 /// Keeps the first [`MAX_DIAGNOSTICS`] diagnostics and notes how many were
 /// dropped, so a file of a hundred thousand mistakes is reported quickly.
-pub fn limit(mut diagnostics: Vec<Diagnostic>) -> Vec<Diagnostic> {
-    if diagnostics.len() > MAX_DIAGNOSTICS {
-        let dropped = diagnostics.len() - MAX_DIAGNOSTICS;
-        let at = diagnostics[MAX_DIAGNOSTICS].span;
-        diagnostics.truncate(MAX_DIAGNOSTICS);
-        diagnostics.push(
-            Diagnostic::note(at, format!("{dropped} more errors not shown"))
-                .with_hint("fix the errors above and check the file again"),
-        );
+pub fn limit(diagnostics: Vec<Diagnostic>) -> Vec<Diagnostic> {
+    let mut capped = CappedErrors::new();
+    capped.extend(diagnostics);
+    capped.into_vec()
+}
+
+/// How many errors a list from [`limit`] (or from
+/// [`compile`](crate::compile())) stands for: the errors shown plus the ones
+/// its closing note counts as not shown. A front end prints this number in
+/// its summary line, so that it matches what is shown and what is elided.
+pub fn error_count(diagnostics: &[Diagnostic]) -> usize {
+    let shown = diagnostics
+        .iter()
+        .filter(|d| d.severity == Severity::Error)
+        .count();
+    let elided: usize = diagnostics
+        .iter()
+        .filter(|d| d.severity == Severity::Note)
+        .filter_map(|d| d.message.strip_suffix(ELIDED_SUFFIX)?.parse::<usize>().ok())
+        .sum();
+    shown + elided
+}
+
+/// The end of the note that counts elided errors: `"{n} more errors not shown"`.
+const ELIDED_SUFFIX: &str = " more errors not shown";
+
+/// Errors of one file in the order found: the first [`MAX_DIAGNOSTICS`] are
+/// kept, the rest only counted, so memory stays bounded however many
+/// mistakes a file holds. [`Self::into_vec`] closes the list with a note that
+/// counts the rest (the form [`limit`] gives and [`error_count`] reads).
+#[derive(Debug, Default)]
+pub(crate) struct CappedErrors {
+    kept: Vec<Diagnostic>,
+    /// Errors counted but not kept.
+    elided: usize,
+    /// Where the first of them is.
+    first_elided: Span,
+}
+
+impl CappedErrors {
+    pub(crate) fn new() -> Self {
+        CappedErrors::default()
     }
-    diagnostics
+
+    pub(crate) fn push(&mut self, d: Diagnostic) {
+        if self.kept.len() < MAX_DIAGNOSTICS {
+            self.kept.push(d);
+        } else {
+            if self.elided == 0 {
+                self.first_elided = d.span;
+            }
+            self.elided += 1;
+        }
+    }
+
+    pub(crate) fn extend(&mut self, diagnostics: impl IntoIterator<Item = Diagnostic>) {
+        for d in diagnostics {
+            self.push(d);
+        }
+    }
+
+    /// Errors found so far, kept or not.
+    pub(crate) fn total(&self) -> usize {
+        self.kept.len() + self.elided
+    }
+
+    pub(crate) fn is_empty(&self) -> bool {
+        self.total() == 0
+    }
+
+    /// Whether the next error will only be counted: work that only serves
+    /// the text of an error (a suggestion, say) can be skipped.
+    pub(crate) fn is_full(&self) -> bool {
+        self.kept.len() >= MAX_DIAGNOSTICS
+    }
+
+    /// The kept errors, then a note counting the others (if any).
+    pub(crate) fn into_vec(mut self) -> Vec<Diagnostic> {
+        if self.elided > 0 {
+            self.kept.push(
+                Diagnostic::note(self.first_elided, format!("{}{ELIDED_SUFFIX}", self.elided))
+                    .with_hint("fix the errors above and check the file again"),
+            );
+        }
+        self.kept
+    }
+}
+
+/// Byte offsets where the lines of a source start: line and column of any
+/// offset in O(log lines) after one O(source) pass.
+#[derive(Clone, Debug)]
+pub(crate) struct LineStarts(Vec<usize>);
+
+impl LineStarts {
+    pub(crate) fn new(source: &str) -> Self {
+        let starts = std::iter::once(0)
+            .chain(source.match_indices('\n').map(|(i, _)| i + 1))
+            .collect();
+        LineStarts(starts)
+    }
+
+    /// 1-based line of byte `at`.
+    pub(crate) fn line(&self, at: usize) -> usize {
+        self.0.partition_point(|&s| s <= at).max(1)
+    }
+
+    /// 1-based line and column (in characters) of byte `at`, as [`Span::line_col`].
+    pub(crate) fn line_col(&self, source: &str, at: usize) -> (usize, usize) {
+        let at = floor_char_boundary(source, at);
+        let line = self.line(at);
+        let start = self.0[line - 1];
+        (line, source[start..at].chars().count() + 1)
+    }
 }
 
 /// A character as it may be shown on a terminal: control characters and
@@ -229,7 +336,11 @@ fn printable(text: &str) -> std::borrow::Cow<'_, str> {
 
 /// Renders every diagnostic, in order.
 pub fn render_all(diagnostics: &[Diagnostic], file: &str, source: &str) -> String {
-    diagnostics.iter().map(|d| d.render(file, source)).collect()
+    let lines = LineStarts::new(source);
+    diagnostics
+        .iter()
+        .map(|d| d.render_with(file, source, &lines))
+        .collect()
 }
 
 /// The candidate closest to `word` by edit distance, if close enough to be a
@@ -292,5 +403,36 @@ mod tests {
         assert_eq!(closest("harbour", ["harbor", "mill"]), Some("harbor"));
         assert_eq!(closest("zzz", ["harbor", "mill"]), None);
         assert_eq!(edit_distance("kitten", "sitting"), 3);
+    }
+
+    #[test]
+    fn line_starts_agree_with_the_scan() {
+        let src = "a\nbé\n\ncd\n";
+        let lines = LineStarts::new(src);
+        for at in 0..=src.len() + 2 {
+            assert_eq!(
+                lines.line_col(src, at),
+                Span::new(at, at).line_col(src),
+                "at {at}"
+            );
+        }
+    }
+
+    #[test]
+    fn capped_errors_keep_a_hundred_and_count_the_rest() {
+        let errors: Vec<Diagnostic> = (0..250)
+            .map(|i| Diagnostic::error(Span::new(i, i + 1), "x"))
+            .collect();
+        let kept = limit(errors);
+        assert_eq!(kept.len(), MAX_DIAGNOSTICS + 1);
+        let note = &kept[MAX_DIAGNOSTICS];
+        assert_eq!(
+            (note.severity, note.message.as_str()),
+            (Severity::Note, "150 more errors not shown")
+        );
+        assert_eq!(note.span, Span::new(100, 101));
+        assert_eq!(error_count(&kept), 250);
+        assert_eq!(error_count(&kept[..3]), 3);
+        assert_eq!(limit(kept[..3].to_vec()).len(), 3);
     }
 }

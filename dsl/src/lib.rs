@@ -18,16 +18,18 @@
 //! assert_eq!(motion.rule.atoms()[0].quota, 4);
 //! ```
 //!
-//! Pipeline, one module each: [`syntax`] (pest grammar, tree with spans) ->
-//! [`mod@compile`] (names, exact quotas, lowering to the IR) -> [`mod@lint`]
-//! (warnings that need the core's counts: dummies, improper rules). [`mod@print`]
-//! writes a rule back as text that compiles to the same rule; [`exact`] runs
-//! one exact analysis with a count type wide enough for the member count.
-//! Errors are [`Diagnostic`]s; pest's types never leave the crate.
+//! Pipeline, one folder or module each: [`syntax`] (pest grammar, tree with
+//! spans; every syntax error of a file, each declaration parsed on its own)
+//! -> [`mod@compile`] (passes: names, blocs, exact quotas, lowering to the IR)
+//! -> [`mod@lint`] (warnings that need the core's counts: dummies, improper
+//! rules). [`mod@print`] writes a rule back as text that compiles to the same
+//! rule; [`exact`] runs one exact analysis with a count type wide enough for
+//! the member count. Errors are [`Diagnostic`]s; pest's types never leave the
+//! crate. No step recurses deeper than a fixed bound, whatever the input.
 //!
 //! | step | time |
 //! | --- | --- |
-//! | parse + compile | O(source + members * attributes) |
+//! | parse + compile | O(source + members * attributes + bloc entries) |
 //! | lint | one exact analysis per rule, within a work budget |
 //! | print | O(members * attributes + nodes) |
 
@@ -44,6 +46,6 @@ pub mod syntax;
 pub use compile::{
     compile, Attribute, AttributeKind, Bloc, CompiledRule, Condition, Group, Member, RuleFile,
 };
-pub use diagnostic::{render_all, Diagnostic, Severity, Span};
+pub use diagnostic::{error_count, render_all, Diagnostic, Severity, Span};
 pub use lint::lint;
 pub use print::print_rule;

@@ -181,34 +181,12 @@ fn expression(t: &Tree, leaf: &impl Fn(u16) -> String, top: bool) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use clout_core::Atom;
+    use clout_core::fixtures::{two_tier, two_tier_atoms};
 
     #[test]
     fn prints_groups_inline_conditions_and_definitions() {
         // Two attributes; members 2 and 3 identical; (a1 >= 3 and a2 >= 1) or a1 >= 5.
-        let weights = vec![3, 1, 1, 0, 0, 2, 2, 1];
-        let atoms = [
-            Atom {
-                attribute: 0,
-                quota: 3,
-            },
-            Atom {
-                attribute: 1,
-                quota: 1,
-            },
-            Atom {
-                attribute: 0,
-                quota: 5,
-            },
-        ];
-        let formula = [
-            Node::Atom(0),
-            Node::Atom(1),
-            Node::All(2),
-            Node::Atom(2),
-            Node::Any(2),
-        ];
-        let rule = Rule::new(4, weights, &atoms, &formula).unwrap();
+        let rule = two_tier(4, vec![3, 1, 1, 0, 0, 2, 2, 1], [3, 1, 5]).unwrap();
         assert_eq!(
             print_rule(&rule),
             "# printed by clout-dsl\n\
@@ -225,7 +203,13 @@ mod tests {
             Node::Any(2),
             Node::All(2),
         ];
-        let rule = Rule::new(4, vec![3, 1, 1, 0, 0, 2, 2, 1], &atoms[..2], &formula).unwrap();
+        let rule = Rule::new(
+            4,
+            vec![3, 1, 1, 0, 0, 2, 2, 1],
+            &two_tier_atoms([3, 1, 5])[..2],
+            &formula,
+        )
+        .unwrap();
         assert!(print_rule(&rule)
             .ends_with("define c1 = a1 >= 3\ndefine c2 = a2 >= 1\nrule printed = c1 and (c2 or c1)\n"));
     }

@@ -586,3 +586,146 @@ proptest! {
         }
     }
 }
+
+/// Every syntax error of a file, rendered as the command line shows them,
+/// and the number of errors the list stands for.
+fn rendered(source: &str) -> (String, usize) {
+    let errors = compile(source).expect_err("the file has errors");
+    let count = clout_dsl::diagnostic::error_count(&errors);
+    (clout_dsl::render_all(&errors, "coop.clout", source), count)
+}
+
+#[test]
+fn one_syntax_error_is_reported_alone() {
+    // The misspelt `members` line would declare tenant1..tenant5: their uses
+    // are not reported again.
+    let source = "\
+member north seats=4
+membrs tenant x5 seats=1
+bloc all = north, tenant1, tenant2
+rule motion = seats > 1/2 and 3 of all
+";
+    let (text, count) = rendered(source);
+    assert_eq!(count, 1);
+    assert_eq!(
+        text,
+        "coop.clout:2:1: error: expected a weight such as `seats=3` or a declaration \
+         (`title`, `member`, `members`, `bloc`, `define` or `rule`), found `membrs`\n\
+         \x20  2 | membrs tenant x5 seats=1\n\
+         \x20    | ^^^^^^\n\
+         \x20    = hint: did you mean `members`?\n"
+    );
+}
+
+#[test]
+fn three_syntax_errors_on_lines_3_9_and_20_are_all_reported() {
+    let source = "\
+title \"Riverside Housing Cooperative (fictional)\"
+member north seats=4 units=120
+member south seats 3 units=80
+member east seats=2 units=60
+member west seats=2 units=45
+members tenant x5 seats=1 units=10
+
+# budgets need two thirds of the seats
+rule budget = seats >= 2/3 and and count > 1/2
+rule repairs = seats > 1/2
+
+# a lease change needs the founders and most of the units
+define lease_quorum = units >= 60%
+
+
+
+
+# the founding members
+
+bloc founders = north, , west
+rule charter = founders and lease_quorum
+";
+    let (text, count) = rendered(source);
+    assert_eq!(count, 3);
+    assert_eq!(
+        text,
+        "coop.clout:3:14: error: expected a weight such as `seats=3` or a declaration \
+         (`title`, `member`, `members`, `bloc`, `define` or `rule`), found `seats`\n\
+         \x20  3 | member south seats 3 units=80\n\
+         \x20    |              ^^^^^\n\
+         \x20    = hint: every declaration starts with one of the keywords `title`, `member`, \
+         `members`, `bloc`, `define`, `rule`\n\
+         coop.clout:9:32: error: expected a condition, found `and`\n\
+         \x20  9 | rule budget = seats >= 2/3 and and count > 1/2\n\
+         \x20    |                                ^^^\n\
+         \x20    = hint: a condition is `ATTRIBUTE >= AMOUNT`, `K of BLOC`, a member or bloc name, \
+         or conditions joined by `and` / `or`\n\
+         coop.clout:20:24: error: expected a name, found `,`\n\
+         \x20 20 | bloc founders = north, , west\n\
+         \x20    |                        ^\n\
+         \x20    = hint: names start with a letter or `_`; keywords such as `count`, `of` and `rule` \
+         cannot be names\n"
+    );
+}
+
+#[test]
+fn a_hundred_and_fifty_syntax_errors_show_a_hundred_and_count_the_rest() {
+    let mut source = String::from("member a seats=2\nmember b seats=1\n");
+    for k in 0..150 {
+        source.push_str(&format!("rule r{k:03} = seats >> 1\n"));
+    }
+    source.push_str("rule fine = seats > 1/2\n");
+    let errors = compile(&source).unwrap_err();
+    assert_eq!(clout_dsl::diagnostic::error_count(&errors), 150);
+    assert_eq!(errors.len(), 101);
+    for (k, e) in errors[..100].iter().enumerate() {
+        assert_eq!(e.severity, Severity::Error);
+        assert_eq!(e.line_col(&source), (k + 3, 20), "{}", e.message);
+        assert_eq!(e.message, "expected an amount, found `>`");
+    }
+    let note = &errors[100];
+    assert_eq!(note.severity, Severity::Note);
+    assert_eq!(note.message, "50 more errors not shown");
+    // The note points at the first error it counts.
+    assert_eq!(note.line_col(&source), (103, 20));
+    let text = clout_dsl::render_all(&errors, "f.clout", &source);
+    assert_eq!(text.matches(": error: ").count(), 100);
+    assert!(
+        text.ends_with(
+            "f.clout:103:20: note: 50 more errors not shown\n\
+         \x20103 | rule r100 = seats >> 1\n\
+         \x20    |                    ^\n\
+         \x20    = hint: fix the errors above and check the file again\n"
+        ),
+        "{text}"
+    );
+}
+
+#[test]
+fn a_set_aside_declaration_does_not_hide_the_other_errors() {
+    // Line 2 is broken: `b` and `zz` are not reported as unknown later, and
+    // the totals it would change are not checked; everything else is.
+    let source = "\
+member a seats=3
+member b seats=2 zz=
+rule r1 = b and zz >= 1
+bloc ab = a, b
+rule r2 = 2 of ab and seats > 1/2
+rule r3 = c
+rule r4 = seats < 2
+rule r5 = seats >= 99
+";
+    let errors = compile(source).unwrap_err();
+    let at: Vec<((usize, usize), &str)> = errors
+        .iter()
+        .map(|e| (e.line_col(source), e.message.as_str()))
+        .collect();
+    assert_eq!(
+        at,
+        [
+            ((3, 1), "expected an amount, found `rule`"),
+            ((6, 11), "unknown name `c`"),
+            (
+                (7, 17),
+                "`seats < 2` is not monotone: an extra yes vote could defeat the motion"
+            ),
+        ]
+    );
+}

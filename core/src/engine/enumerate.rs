@@ -3,7 +3,10 @@
 //! Time O(2^n * n * (atoms + nodes)); each step changes one member, so the
 //! per-attribute sums are updated in O(attributes). Scratch: 3 n^2 counts
 //! (pivots by size, swings by the number of swings in the coalition,
-//! minimal winning coalitions by size). Limited to n <= [`MAX_MEMBERS`].
+//! minimal winning coalitions by size). Limited to n <= [`MAX_MEMBERS`],
+//! which keeps 2^n and every table index in range. Counts use the caller's
+//! checked [`Counter`] (overflow is [`Error::CountOverflow`]); coalition sums
+//! stay below the checked attribute totals.
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or
@@ -13,11 +16,15 @@
 // the caller's scratch.
 #![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
 
-use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
-use crate::count::Counter;
-use crate::limits::MAX_ATTRIBUTES;
-use crate::power::{MemberCounts, RuleCounts};
-use crate::{Engine, Error, Rule};
+use crate::engine::counts::{MemberCounts, RuleCounts};
+use crate::engine::pivots::{reciprocal_sum, shapley_from_sizes, sum_counts};
+use crate::engine::registry::{Counting, Job};
+use crate::engine::{Need, Scope, Workspace};
+use crate::model::count::Counter;
+use crate::model::engine_id::Engine;
+use crate::model::error::Error;
+use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::rule::Rule;
 
 /// Most members the enumeration engine accepts.
 pub const MAX_MEMBERS: usize = 30;
@@ -32,18 +39,31 @@ fn check<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<usize, Error> {
     Ok(n)
 }
 
-pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
-    let n = check(rule)?;
-    Ok(Need {
-        counts: 3 * n * n,
-        indices: 0,
-    })
-}
+/// The enumeration engine.
+pub(crate) struct Enumeration;
 
-pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
-    let n = check(rule)?;
-    let per = (n as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
-    Ok((1u128 << n) * per)
+impl Counting for Enumeration {
+    const ENGINE: Engine = Engine::Enumerate;
+    const DESCRIPTION: &'static str = "visits every coalition (2^n of them)";
+    const MINIMAL_COALITIONS: bool = true;
+
+    fn scratch<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<Need, Error> {
+        let n = check(rule)?;
+        Ok(Need {
+            counts: 3 * n * n,
+            indices: 0,
+        })
+    }
+
+    fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<u128, Error> {
+        let n = check(rule)?;
+        let per = (n as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
+        Ok((1u128 << n) * per)
+    }
+
+    fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
+        count(job.rule, job.members, job.work)
+    }
 }
 
 struct Sums<'r, W: AsRef<[u64]>> {
@@ -81,7 +101,7 @@ impl<W: AsRef<[u64]>> Sums<'_, W> {
     }
 }
 
-pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
@@ -105,19 +125,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         rule,
         sums: [0; MAX_ATTRIBUTES],
     };
-    let mut out = RuleCounts {
-        members: n,
-        winning: C::ZERO,
-        losing: C::ZERO,
-        minimal_winning: Some(C::ZERO),
-        minimal_blocking: Some(C::ZERO),
-        smallest_winning: None,
-        proper: true,
-        strong: true,
-        factorial: None,
-        shapley_shubik: true,
-        engine: Engine::Enumerate,
-    };
+    let mut out = RuleCounts::<C>::start(n, Engine::Enumerate, true);
     let mut mask: u64 = 0;
     let steps: u64 = 1 << n;
     for step in 0..steps {

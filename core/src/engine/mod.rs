@@ -1,75 +1,59 @@
-//! Exact counting engines and what they share.
+//! The engines: exact counting engines behind one interface, and the
+//! approximate and four-state computations beside them.
 //!
 //! | engine | handles | time | scratch (counts) |
 //! | --- | --- | --- | --- |
 //! | [`Engine::Enumerate`] | any rule, n <= 30 | O(2^n * n * (atoms + nodes)) | 3 n^2 |
 //! | [`Engine::Profile`] | any rule whose members fall into few types (identical weight vectors) | O(Π(c_t + 1) * T * (atoms + nodes)) | ~2n + 3Tn |
 //! | [`Engine::Dense`] | any rule with modest quotas (capped partial sums) | single threshold: O(n^2 q); compound: O(T n^2 Π caps) | see [`need`] |
+//! | [`Engine::Diagram`] | any rule, huge weights included (feature `alloc`) | O(N n^2) for N nodes | none (own tables, O(N n) counts, checked against a limit) |
 //!
-//! Every engine fills one [`MemberCounts`] per member and returns
+//! Every exact engine fills one [`MemberCounts`] per member and returns
 //! [`RuleCounts`]; all counts are exact in the caller's [`Counter`] type and
-//! overflow is an error. Enumeration is the oracle the others are tested
-//! against.
+//! overflow is [`Error::CountOverflow`]. Enumeration is the oracle the others
+//! are tested against. Each engine is a type implementing the crate's
+//! engine interface in its own module (see `registry.rs`): the functions
+//! here ([`need_for`], [`cost_for`], [`memory_for`], [`try_count_for`]) put
+//! one question to the engine an [`Engine`] names.
+//!
+//! Beside them (feature `alloc`): `approx` (Monte Carlo and normal
+//! approximations, every figure with its error bound) and `ternary`
+//! (power under abstention and attendance).
+//!
+//! Import rule: the engines import the model (`crate::model`) and each
+//! other, never `analysis` or `device`.
 
+mod counts;
 pub(crate) mod dense;
+pub(crate) mod enumerate;
+pub(crate) mod member_types;
+pub(crate) mod pivots;
+pub(crate) mod profile;
+mod registry;
+
+#[cfg(feature = "alloc")]
+pub mod approx;
 #[cfg(feature = "alloc")]
 pub mod diagram;
-pub(crate) mod enumerate;
-pub(crate) mod profile;
 #[cfg(feature = "alloc")]
 pub(crate) mod residue;
+#[cfg(feature = "alloc")]
+pub mod ternary;
+#[cfg(feature = "std")]
+pub mod threads;
 
-use crate::count::{ratio, Counter};
-use crate::limits::MAX_ATTRIBUTES;
-use crate::power::{MemberCounts, RuleCounts};
-use crate::{Error, Rule};
+pub use crate::model::engine_id::Engine;
+pub use counts::{MemberCounts, RuleCounts};
 
-/// A counting engine.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-#[non_exhaustive]
-pub enum Engine {
-    /// Visit every coalition in Gray-code order: the oracle.
-    Enumerate,
-    /// Visit every profile of member types (how many of each type vote yes),
-    /// weighting each by its binomial multiplicity.
-    Profile,
-    /// Generating functions over capped partial sums (dynamic programming).
-    Dense,
-    /// Quasi-reduced ordered decision diagrams (feature `alloc`): exact for
-    /// huge weights.
-    Diagram,
-}
+#[cfg(feature = "alloc")]
+use alloc::{vec, vec::Vec};
 
-impl Engine {
-    /// All engines, in the planner's order of preference on equal cost.
-    pub const ALL: [Engine; 4] = [Engine::Profile, Engine::Dense, Engine::Diagram, Engine::Enumerate];
-
-    /// Short lowercase name.
-    pub fn name(self) -> &'static str {
-        match self {
-            Engine::Enumerate => "enumerate",
-            Engine::Profile => "profile",
-            Engine::Dense => "dense",
-            Engine::Diagram => "diagram",
-        }
-    }
-
-    /// Whether this engine computes the minimal-coalition indices (Johnston,
-    /// Deegan-Packel, Holler) and counts.
-    pub fn computes_minimal(self) -> bool {
-        !matches!(self, Engine::Dense | Engine::Diagram)
-    }
-
-    /// What the engine does, in one line.
-    pub fn describe(self) -> &'static str {
-        match self {
-            Engine::Enumerate => "visits every coalition (2^n of them)",
-            Engine::Profile => "visits every profile of member types, weighted by binomial coefficients",
-            Engine::Dense => "dynamic programming over capped partial sums (generating functions)",
-            Engine::Diagram => "decision diagram over equivalence classes of residual quotas",
-        }
-    }
-}
+use crate::model::count::Counter;
+use crate::model::error::Error;
+use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::rule::Rule;
+use pivots::factorial;
+use registry::{ask, Cost, Job, Scratch, Tables};
 
 /// Scratch an engine needs for a rule: `counts` elements of the count type
 /// and `indices` elements of `u32`.
@@ -79,6 +63,15 @@ pub struct Need {
     pub counts: usize,
     /// `u32` elements.
     pub indices: usize,
+}
+
+impl Need {
+    /// Bytes of this scratch with counts of `count_bytes` bytes (saturating).
+    pub(crate) fn bytes(self, count_bytes: usize) -> u64 {
+        (self.counts as u64)
+            .saturating_mul(count_bytes as u64)
+            .saturating_add((self.indices as u64).saturating_mul(4))
+    }
 }
 
 /// Caller-owned scratch for an engine.
@@ -106,13 +99,7 @@ pub fn need<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<Need, Err
 
 /// How much scratch `engine` needs for `rule` and `scope`.
 pub fn need_for<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine, scope: Scope) -> Result<Need, Error> {
-    match engine {
-        Engine::Enumerate => enumerate::need(rule),
-        Engine::Profile => profile::need(rule),
-        Engine::Dense => dense::need(rule, scope == Scope::All),
-        // The diagram engine allocates its own storage (feature `alloc`).
-        Engine::Diagram => diagram_need(),
-    }
+    ask(engine, Scratch { rule, scope })
 }
 
 /// Estimated work of `engine` on `rule`, in elementary steps (saturating).
@@ -122,39 +109,7 @@ pub fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<u128, Err
 
 /// Estimated work of `engine` on `rule` for `scope`.
 pub fn cost_for<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine, scope: Scope) -> Result<u128, Error> {
-    match engine {
-        Engine::Enumerate => enumerate::cost(rule),
-        Engine::Profile => profile::cost(rule),
-        Engine::Dense => dense::cost(rule, scope == Scope::All),
-        Engine::Diagram => diagram_cost(rule),
-    }
-}
-
-#[cfg(feature = "alloc")]
-fn diagram_need() -> Result<Need, Error> {
-    Ok(Need {
-        counts: 0,
-        indices: 0,
-    })
-}
-
-#[cfg(not(feature = "alloc"))]
-fn diagram_need() -> Result<Need, Error> {
-    Err(Error::EngineUnsuitable {
-        engine: Engine::Diagram,
-    })
-}
-
-#[cfg(feature = "alloc")]
-fn diagram_cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
-    Ok(diagram::estimate(rule))
-}
-
-#[cfg(not(feature = "alloc"))]
-fn diagram_cost<W: AsRef<[u64]>>(_: &Rule<W>) -> Result<u128, Error> {
-    Err(Error::EngineUnsuitable {
-        engine: Engine::Diagram,
-    })
+    ask(engine, Cost { rule, scope })
 }
 
 /// Estimated bytes `engine` needs on `rule` for `scope` with counts of
@@ -168,31 +123,15 @@ pub fn memory_for<W: AsRef<[u64]>>(
 ) -> Result<u64, Error> {
     let n = rule.members() as u64;
     let results = n.saturating_mul((count_bytes as u64).saturating_mul(2).saturating_add(48));
-    let tables = match engine {
-        Engine::Diagram => diagram_memory(rule, count_bytes)?,
-        Engine::Dense if cfg!(feature = "alloc") && scope == Scope::Swings => {
-            dense::residue_memory(rule, count_bytes)?
-        }
-        _ => {
-            let need = need_for(rule, engine, scope)?;
-            (need.counts as u64)
-                .saturating_mul(count_bytes as u64)
-                .saturating_add((need.indices as u64).saturating_mul(4))
-        }
-    };
+    let tables = ask(
+        engine,
+        Tables {
+            rule,
+            scope,
+            count_bytes,
+        },
+    )?;
     Ok(tables.saturating_add(results))
-}
-
-#[cfg(feature = "alloc")]
-fn diagram_memory<W: AsRef<[u64]>>(rule: &Rule<W>, count_bytes: usize) -> Result<u64, Error> {
-    Ok(diagram::estimate_memory(rule, count_bytes))
-}
-
-#[cfg(not(feature = "alloc"))]
-fn diagram_memory<W: AsRef<[u64]>>(_: &Rule<W>, _: usize) -> Result<u64, Error> {
-    Err(Error::EngineUnsuitable {
-        engine: Engine::Diagram,
-    })
 }
 
 /// Runs `engine` on `rule`, writing one entry per member into `members`.
@@ -239,39 +178,38 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
     for m in members.iter_mut() {
         *m = MemberCounts::EMPTY;
     }
-    let mut counts = match engine {
-        Engine::Enumerate => enumerate::count(rule, members, work)?,
-        Engine::Profile => profile::count(rule, members, work)?,
-        Engine::Dense => dense::count(rule, members, work, scope == Scope::All)?,
-        Engine::Diagram => diagram_count(rule, members)?,
-    };
+    let mut counts = ask(
+        engine,
+        Job {
+            rule,
+            scope,
+            members: &mut *members,
+            work,
+        },
+    )?;
     mark_veto_and_dictators(rule, members);
     counts.factorial = factorial(n).ok();
-    counts.shapley_shubik = !(engine == Engine::Dense && scope == Scope::Swings);
     Ok(counts)
 }
 
-#[cfg(feature = "alloc")]
-fn diagram_count<W: AsRef<[u64]>, C: Counter>(
+/// [`try_count_for`] with scratch and results allocated here: the
+/// convenience layer's counting step and the engines' tests.
+#[cfg(any(test, feature = "alloc"))]
+pub(crate) fn count_allocating<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
-    members: &mut [MemberCounts<C>],
-) -> Result<RuleCounts<C>, Error> {
-    diagram::count(
-        rule,
-        members,
-        diagram::Order::LightFirst,
-        diagram::DEFAULT_MEMORY_LIMIT,
-    )
-}
-
-#[cfg(not(feature = "alloc"))]
-fn diagram_count<W: AsRef<[u64]>, C: Counter>(
-    _: &Rule<W>,
-    _: &mut [MemberCounts<C>],
-) -> Result<RuleCounts<C>, Error> {
-    Err(Error::EngineUnsuitable {
-        engine: Engine::Diagram,
-    })
+    engine: Engine,
+    scope: Scope,
+) -> Result<(RuleCounts<C>, Vec<MemberCounts<C>>), Error> {
+    let need = need_for(rule, engine, scope)?;
+    let mut counts = vec![C::ZERO; need.counts];
+    let mut indices = vec![0u32; need.indices];
+    let mut members = vec![MemberCounts::EMPTY; rule.members()];
+    let work = Workspace {
+        counts: &mut counts,
+        indices: &mut indices,
+    };
+    let totals = try_count_for(rule, engine, scope, &mut members, work)?;
+    Ok((totals, members))
 }
 
 /// Veto: the rule fails when everyone but the member votes yes.
@@ -301,75 +239,39 @@ fn mark_veto_and_dictators<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, members:
     }
 }
 
-/// n! in the count type.
-pub(crate) fn factorial<C: Counter>(n: usize) -> Result<C, Error> {
-    let mut f = C::ONE;
-    for k in 2..=n as u64 {
-        f = f.mul_u64(k)?;
-    }
-    Ok(f)
-}
+/// Without `alloc` the diagram engine cannot build its tables: registered
+/// all the same, it applies to no rule.
+#[cfg(not(feature = "alloc"))]
+mod diagram {
+    use super::registry::{Counting, Job};
+    use super::{Need, RuleCounts, Scope};
+    use crate::model::count::Counter;
+    use crate::model::engine_id::Engine;
+    use crate::model::error::Error;
+    use crate::model::rule::Rule;
 
-/// Shapley-Shubik value and exact numerator (over n!) from pivot counts by
-/// size: `by_size[k]` counts coalitions S of k other members that lose
-/// alone and win with the member.
-///
-/// φ = Σ_k by_size[k] * k! (n-1-k)! / n! = Σ_k by_size[k] / (n * C(n-1, k)).
-pub(crate) fn shapley_from_sizes<C: Counter>(n: usize, by_size: &[C]) -> Result<(f64, Option<C>), Error> {
-    let mut value = 0.0;
-    let mut binom = C::ONE; // C(n-1, k)
-    let top = n.saturating_sub(1) as u64;
-    for (k, &c) in by_size.iter().enumerate().take(n) {
-        if !c.is_zero() {
-            value += ratio(c, binom);
-        }
-        let k = k as u64;
-        if k < top {
-            // k < top: both factors are positive.
-            let (q, r) = binom
-                .mul_u64(top.saturating_sub(k))?
-                .div_rem_u64(k.saturating_add(1));
-            debug_assert_eq!(r, 0);
-            binom = q;
-        }
-    }
-    let value = value / n as f64;
-    Ok((value, shapley_numerator(n, by_size).ok()))
-}
+    /// The diagram engine's place in a build without `alloc`.
+    pub(crate) struct Diagrams;
 
-/// Σ_k by_size[k] * k! (n-1-k)!, or an overflow error.
-fn shapley_numerator<C: Counter>(n: usize, by_size: &[C]) -> Result<C, Error> {
-    // term_k = k! (n-1-k)!; term_0 = (n-1)!; term_{k+1} = term_k (k+1)/(n-1-k).
-    let mut term: C = factorial(n.saturating_sub(1))?;
-    let mut acc = C::ZERO;
-    let top = n.saturating_sub(1) as u64;
-    for (k, &c) in by_size.iter().enumerate().take(n) {
-        acc = acc.add(c.mul(term)?)?;
-        let k = k as u64;
-        if k < top {
-            let (q, r) = term
-                .mul_u64(k.saturating_add(1))?
-                .div_rem_u64(top.saturating_sub(k));
-            if r != 0 {
-                return Err(Error::CountOverflow);
-            }
-            term = q;
+    const UNSUITABLE: Error = Error::EngineUnsuitable {
+        engine: Engine::Diagram,
+    };
+
+    impl Counting for Diagrams {
+        const ENGINE: Engine = Engine::Diagram;
+        const DESCRIPTION: &'static str = super::DIAGRAM_DESCRIPTION;
+        const MINIMAL_COALITIONS: bool = false;
+        fn scratch<W: AsRef<[u64]>>(_: &Rule<W>, _: Scope) -> Result<Need, Error> {
+            Err(UNSUITABLE)
+        }
+        fn cost<W: AsRef<[u64]>>(_: &Rule<W>, _: Scope) -> Result<u128, Error> {
+            Err(UNSUITABLE)
+        }
+        fn run<W: AsRef<[u64]>, C: Counter>(_: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
+            Err(UNSUITABLE)
         }
     }
-    Ok(acc)
 }
 
-/// Johnston or Deegan-Packel raw score: Σ_k counts[k] / (k+1), times 2^-n.
-pub(crate) fn reciprocal_sum<C: Counter>(n: usize, counts: &[C]) -> f64 {
-    counts
-        .iter()
-        .enumerate()
-        .filter(|(_, c)| !c.is_zero())
-        .map(|(k, &c)| crate::power::scaled(c, n) / (k as f64 + 1.0))
-        .fold(0.0, |a, b| a + b)
-}
-
-/// Sum of a slice of counts.
-pub(crate) fn sum_counts<C: Counter>(counts: &[C]) -> Result<C, Error> {
-    counts.iter().try_fold(C::ZERO, |acc, &c| acc.add(c))
-}
+/// The diagram engine's one-line description, the same in every build.
+const DIAGRAM_DESCRIPTION: &str = "decision diagram over equivalence classes of residual quotas";

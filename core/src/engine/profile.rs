@@ -7,9 +7,12 @@
 //! rule O(T) times per profile: a 536-member two-chamber rule has 3 types
 //! and 88,000 profiles instead of 2^536 coalitions.
 //!
-//! Every index is exact, including the minimal-coalition ones. Scratch:
-//! Σ(c_t + 1) binomials, T + 1 running products and 3 T n counts;
-//! 3n + 1 indices (member order, type starts, the profile odometer).
+//! Every index is exact, including the minimal-coalition ones. Time
+//! O(Π(c_t + 1) * T * (atoms + nodes)), planned only up to [`MAX_TYPES`]
+//! types. Scratch: Σ(c_t + 1) binomials, T + 1 running products and 3 T n
+//! counts; 3n + 1 indices (member order, type starts, the profile
+//! odometer). Multiplicities and counts use the caller's checked
+//! [`Counter`]: overflow is [`Error::CountOverflow`].
 
 // Hot loops index their tables and add bounded integers directly (checked
 // arithmetic would cost the engines' speed). Why nothing is out of range or
@@ -19,44 +22,16 @@
 // use the checked `Counter`.
 #![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
 
-use super::{reciprocal_sum, shapley_from_sizes, sum_counts, Need, Workspace};
-use crate::count::{binomial, Counter};
-use crate::limits::MAX_ATTRIBUTES;
-use crate::power::{MemberCounts, RuleCounts};
-use crate::{Engine, Error, Rule};
-
-/// Sorts member indices so that members of one type are adjacent, and
-/// writes type boundaries into `starts` (T + 1 entries). Returns T.
-pub(crate) fn group_types<W: AsRef<[u64]>>(
-    rule: &Rule<W>,
-    mask: u64,
-    order: &mut [u32],
-    starts: &mut [u32],
-) -> usize {
-    let n = rule.members();
-    for (i, o) in order.iter_mut().enumerate().take(n) {
-        *o = i as u32;
-    }
-    let column_cmp = |x: &u32, y: &u32| {
-        for a in (0..rule.attributes()).filter(|a| mask & (1 << a) != 0) {
-            let o = rule.weight(a, *x as usize).cmp(&rule.weight(a, *y as usize));
-            if o.is_ne() {
-                return o;
-            }
-        }
-        core::cmp::Ordering::Equal
-    };
-    order[..n].sort_unstable_by(|x, y| column_cmp(x, y).then(x.cmp(y)));
-    let mut types = 0;
-    for i in 0..n {
-        if i == 0 || column_cmp(&order[i - 1], &order[i]).is_ne() {
-            starts[types] = i as u32;
-            types += 1;
-        }
-    }
-    starts[types] = n as u32;
-    types
-}
+use crate::engine::counts::{MemberCounts, RuleCounts};
+use crate::engine::member_types::Types;
+use crate::engine::pivots::{reciprocal_sum, shapley_from_sizes, sum_counts};
+use crate::engine::registry::{Counting, Job};
+use crate::engine::{Need, Scope, Workspace};
+use crate::model::count::{binomial, Counter};
+use crate::model::engine_id::Engine;
+use crate::model::error::Error;
+use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::rule::Rule;
 
 /// Most types the profile engine accepts.
 pub const MAX_TYPES: usize = 4096;
@@ -74,7 +49,8 @@ fn shape<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<(usize, u128)> {
         let n = rule.members();
         let mut order = alloc::vec![0u32; n];
         let mut starts = alloc::vec![0u32; n + 1];
-        let types = group_types(rule, rule.used_attributes(), &mut order, &mut starts);
+        let types =
+            crate::engine::member_types::group_types(rule, rule.used_attributes(), &mut order, &mut starts);
         if types > MAX_TYPES {
             return None;
         }
@@ -117,43 +93,41 @@ fn shape_by_scan<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<(usize, u128)> {
     Some((types, product))
 }
 
-pub(crate) fn need<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Need, Error> {
-    let n = rule.members();
-    let (types, _) = shape(rule).ok_or(Error::EngineUnsuitable {
-        engine: Engine::Profile,
-    })?;
-    // binomials Σ(c_t + 1) = n + T, products T + 1, per-type tables 3 T n.
-    Ok(Need {
-        counts: n + 2 * types + 1 + 3 * types * n,
-        indices: 3 * n + 1,
-    })
-}
+/// The profile engine.
+pub(crate) struct Profiles;
 
-pub(crate) fn cost<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<u128, Error> {
-    let (types, profiles) = shape(rule).ok_or(Error::EngineUnsuitable {
-        engine: Engine::Profile,
-    })?;
-    let per = (2 * types as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
-    Ok(profiles.saturating_mul(per))
-}
+impl Counting for Profiles {
+    const ENGINE: Engine = Engine::Profile;
+    const DESCRIPTION: &'static str =
+        "visits every profile of member types, weighted by binomial coefficients";
+    const MINIMAL_COALITIONS: bool = true;
 
-struct Types<'a> {
-    count: usize,
-    /// Member indices grouped by type.
-    order: &'a [u32],
-    starts: &'a [u32],
-}
-
-impl Types<'_> {
-    fn size(&self, t: usize) -> usize {
-        (self.starts[t + 1] - self.starts[t]) as usize
+    fn scratch<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<Need, Error> {
+        let n = rule.members();
+        let (types, _) = shape(rule).ok_or(Error::EngineUnsuitable {
+            engine: Engine::Profile,
+        })?;
+        // binomials Σ(c_t + 1) = n + T, products T + 1, per-type tables 3 T n.
+        Ok(Need {
+            counts: n + 2 * types + 1 + 3 * types * n,
+            indices: 3 * n + 1,
+        })
     }
-    fn representative(&self, t: usize) -> usize {
-        self.order[self.starts[t] as usize] as usize
+
+    fn cost<W: AsRef<[u64]>>(rule: &Rule<W>, _: Scope) -> Result<u128, Error> {
+        let (types, profiles) = shape(rule).ok_or(Error::EngineUnsuitable {
+            engine: Engine::Profile,
+        })?;
+        let per = (2 * types as u128 + 2) * (rule.atoms().len() + rule.formula().len()) as u128;
+        Ok(profiles.saturating_mul(per))
+    }
+
+    fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
+        count(job.rule, job.members, job.work)
     }
 }
 
-pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
@@ -163,12 +137,8 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     let mask = rule.used_attributes();
     let (order, rest) = work.indices.split_at_mut(n);
     let (starts, digits) = rest.split_at_mut(n + 1);
-    let t_count = group_types(rule, mask, order, starts);
-    let types = Types {
-        count: t_count,
-        order,
-        starts,
-    };
+    let types = Types::group(rule, mask, order, starts);
+    let t_count = types.count;
     let digits = &mut digits[..t_count];
 
     // Scratch layout: binomials (offset per type), running products, tables.
@@ -201,19 +171,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
         *slot = rule.total(a);
     }
 
-    let mut out = RuleCounts {
-        members: n,
-        winning: C::ZERO,
-        losing: C::ZERO,
-        minimal_winning: Some(C::ZERO),
-        minimal_blocking: Some(C::ZERO),
-        smallest_winning: None,
-        proper: true,
-        strong: true,
-        factorial: None,
-        shapley_shubik: true,
-        engine: Engine::Profile,
-    };
+    let mut out = RuleCounts::<C>::start(n, Engine::Profile, true);
     for d in digits.iter_mut() {
         *d = 0;
     }
@@ -352,7 +310,7 @@ fn finish<W: AsRef<[u64]>, C: Counter>(
             veto: false,
             dictator: false,
         };
-        for &m in &types.order[types.starts[t] as usize..types.starts[t + 1] as usize] {
+        for &m in types.members(t) {
             members[m as usize] = value;
         }
     }
@@ -362,7 +320,8 @@ fn finish<W: AsRef<[u64]>, C: Counter>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::Rule;
+    use crate::model::atom::Atom;
+    use crate::model::rule::Node;
 
     #[test]
     fn shape_by_sorting_matches_the_scan() {
@@ -371,11 +330,11 @@ mod tests {
         let rule = Rule::new(
             6,
             &weights[..],
-            &[crate::Atom {
+            &[Atom {
                 attribute: 1,
                 quota: 9,
             }],
-            &[crate::Node::Atom(0)],
+            &[Node::Atom(0)],
         )
         .unwrap();
         // Only attribute 1 is used: types {0,2,3,5} (7) and {1,4} (5).

@@ -23,10 +23,12 @@
 use alloc::vec;
 use alloc::vec::Vec;
 
-use crate::count::Counter;
-use crate::limits::MAX_ATTRIBUTES;
-use crate::power::{MemberCounts, RuleCounts};
-use crate::{Engine, Error, Rule};
+use crate::engine::counts::{MemberCounts, RuleCounts};
+use crate::engine::member_types::Types;
+use crate::model::count::Counter;
+use crate::model::engine_id::Engine;
+use crate::model::error::Error;
+use crate::model::rule::Rule;
 
 /// `a * b mod m`.
 fn mul_mod(a: u64, b: u64, m: u64) -> u64 {
@@ -241,44 +243,25 @@ fn from_digits<C: Counter>(digits: &[u64], primes: &[u64]) -> Result<C, Error> {
     Ok(x)
 }
 
-/// Counts swings (no Shapley-Shubik) of a one-attribute rule by residues.
+/// Counts swings (no Shapley-Shubik) of a one-attribute rule by residues:
+/// attribute `attr`, sums capped at `cap`, least winning sum `first_win`.
 pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     attr: usize,
     cap: usize,
-    order: &[u32],
-    starts: &[u32],
-    types: usize,
+    first_win: usize,
+    types: &Types<'_>,
     members: &mut [MemberCounts<C>],
 ) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
-    let attributes = rule.attributes();
-    let wins_sum = |s: u64| {
-        let mut sums = [0u64; MAX_ATTRIBUTES];
-        sums[attr] = s;
-        rule.passes_with_sums(&sums[..attributes])
-    };
-    let len = cap + 1;
-    let first_win = {
-        let (mut lo, mut hi) = (0usize, len);
-        while lo < hi {
-            let mid = (lo + hi) / 2;
-            if wins_sum(mid as u64) {
-                hi = mid;
-            } else {
-                lo = mid + 1;
-            }
-        }
-        lo
-    };
     let total = rule.total(attr) as usize;
     // Winning s whose complement T - s also wins: s >= first_win and T - s >= first_win.
     let proper = (first_win, total.saturating_sub(first_win));
     // Losing s whose complement loses: s < first_win and T - s < first_win.
     let strong = ((total + 1).saturating_sub(first_win), first_win.saturating_sub(1));
     let strong = if first_win == 0 { (1, 0) } else { strong };
-    let type_weights: Vec<u64> = (0..types)
-        .map(|t| rule.weight(attr, order[starts[t] as usize] as usize))
+    let type_weights: Vec<u64> = (0..types.count)
+        .map(|t| rule.weight(attr, types.representative(t)))
         .collect();
     let weights = rule.attribute_weights(attr);
     let shape = Shape {
@@ -300,21 +283,16 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     let winning = value(0)?;
     let losing = value(1)?;
     let out = RuleCounts {
-        members: n,
         winning,
         losing,
-        minimal_winning: None,
-        minimal_blocking: None,
-        smallest_winning: None,
         proper: value(2)?.is_zero(),
         strong: value(3)?.is_zero(),
-        factorial: None,
         shapley_shubik: false,
-        engine: Engine::Dense,
+        ..RuleCounts::start(n, Engine::Dense, false)
     };
-    for t in 0..types {
+    for t in 0..types.count {
         let swings = value(4 + t)?;
-        for &m in &order[starts[t] as usize..starts[t + 1] as usize] {
+        for &m in types.members(t) {
             members[m as usize] = MemberCounts {
                 swings,
                 ..MemberCounts::EMPTY
@@ -344,7 +322,7 @@ fn reconstruct_exact<C: Counter>(residues: &[u64], primes: &[u64]) -> Result<C, 
 
 #[cfg(feature = "std")]
 fn run_passes(shape: &Shape<'_>, primes: &[u64]) -> Vec<Pass> {
-    let threads = crate::threads::available().min(primes.len()).max(1);
+    let threads = crate::engine::threads::available().min(primes.len()).max(1);
     // One worker runs here (WebAssembly without threads cannot spawn one).
     if threads == 1 {
         return primes.iter().map(|&p| pass(shape, p as u32)).collect();
@@ -374,9 +352,9 @@ fn run_passes(shape: &Shape<'_>, primes: &[u64]) -> Vec<Pass> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::{analyze_opts, analyze_with, Options};
-    use crate::count::Count1024;
+    use crate::engine::count_allocating;
     use crate::engine::Scope;
+    use crate::model::count::Count1024;
 
     #[test]
     fn primes_are_prime_and_large() {
@@ -392,24 +370,13 @@ mod tests {
         let w: Vec<u64> = (0..210).map(|i| 1 + i % 3).collect();
         for q in [1u64, 150, 211, 300, 420] {
             let rule = Rule::weighted(q, w.clone()).unwrap();
-            let exact = analyze_with::<_, Count1024>(&rule, Engine::Profile).unwrap();
-            let opts = Options {
-                engine: Some(Engine::Dense),
-                scope: Scope::Swings,
-                ..Options::default()
-            };
-            let fast = analyze_opts::<_, Count1024>(&rule, &opts).unwrap();
-            assert_eq!(fast.rule.winning, exact.rule.winning, "q = {q}");
-            assert_eq!(fast.rule.losing, exact.rule.losing);
-            assert_eq!(
-                (fast.rule.proper, fast.rule.strong),
-                (exact.rule.proper, exact.rule.strong)
-            );
+            let exact = count_allocating::<_, Count1024>(&rule, Engine::Profile, Scope::All).unwrap();
+            let fast = count_allocating::<_, Count1024>(&rule, Engine::Dense, Scope::Swings).unwrap();
+            assert_eq!(fast.0.winning, exact.0.winning, "q = {q}");
+            assert_eq!(fast.0.losing, exact.0.losing);
+            assert_eq!((fast.0.proper, fast.0.strong), (exact.0.proper, exact.0.strong));
             for i in 0..3 {
-                assert_eq!(
-                    fast.members[i].swings, exact.members[i].swings,
-                    "q = {q}, member {i}"
-                );
+                assert_eq!(fast.1[i].swings, exact.1[i].swings, "q = {q}, member {i}");
             }
         }
     }

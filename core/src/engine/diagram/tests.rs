@@ -1,0 +1,96 @@
+//! Tests of the diagram engine against enumeration.
+
+use super::*;
+use crate::engine::count_allocating;
+use crate::fixtures::{two_tier, two_tier_atoms};
+use crate::model::atom::Atom;
+use crate::model::limits::MAX_TOTAL;
+use crate::model::rule::Node;
+use proptest::prelude::*;
+
+#[test]
+fn totals_at_the_top_of_u64() {
+    // The fuzzer's case: weights summing to exactly 2^64 - 1 and that
+    // quota. The diagram gave 4,096 winning coalitions of 4,096 (a class
+    // bound equal to the TRUE key); such totals are now refused by
+    // every rule, and at the limit the diagram is exact.
+    let mut weights = vec![u64::MAX - 35, 2, 0, 6, 5, 5, 4, 1, 0, 3, 3, 6];
+    weights.extend([0u64; 12]);
+    let atoms = [Atom {
+        attribute: 0,
+        quota: u64::MAX,
+    }];
+    assert_eq!(
+        Rule::new(12, weights, &atoms, &[Node::Atom(0)]).unwrap_err(),
+        Error::WeightSumOverflow { attribute: 0 }
+    );
+    let max = MAX_TOTAL;
+    let rule = Rule::weighted(max, vec![max - 3, 1, 1, 1, 0]).unwrap();
+    let d = count_allocating::<_, u128>(&rule, Engine::Diagram, Scope::All).unwrap();
+    assert_eq!(d.0.winning, 2); // all four weighted members, with or without the fifth
+    let e = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+    assert_eq!(d.0.winning, e.0.winning);
+    for (a, b) in d.1.iter().zip(&e.1) {
+        assert_eq!(a.swings, b.swings);
+    }
+}
+
+fn rule_from(n: usize, w: Vec<u64>, q: [u64; 3], shape: u8) -> Rule<Vec<u64>> {
+    match shape % 3 {
+        0 => two_tier(n, w, q).unwrap(),
+        // (atom 0 or atom 1) and atom 2
+        1 => {
+            let f = [
+                Node::Atom(0),
+                Node::Atom(1),
+                Node::Any(2),
+                Node::Atom(2),
+                Node::All(2),
+            ];
+            Rule::new(n, w, &two_tier_atoms(q), &f).unwrap()
+        }
+        _ => Rule::new(n, w, &two_tier_atoms(q), &[Node::Atom(0)]).unwrap(),
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+    #[test]
+    fn diagram_matches_enumeration(
+        n in 1usize..11,
+        big in any::<bool>(),
+        seed in prop::collection::vec(0u64..1000, 22),
+        shares in prop::collection::vec(0u64..=100, 3),
+        shape in 0u8..3,
+        order in 0u8..3,
+    ) {
+        // Weights up to 10^15 when `big`: equivalence classes, not weights, size the diagram.
+        let scale = if big { 1_000_000_000_000 } else { 1 };
+        let w: Vec<u64> = seed[..2 * n].iter().map(|&x| x * scale + x % 7).collect();
+        let t0: u64 = w[..n].iter().sum();
+        let t1: u64 = w[n..].iter().sum();
+        let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
+        let rule = rule_from(n, w, q, shape);
+        let order = [Order::Declared, Order::HeavyFirst, Order::LightFirst][order as usize];
+        let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+        let mut members = vec![MemberCounts::<u128>::EMPTY; n];
+        let got = count(&rule, &mut members, order, DEFAULT_MEMORY_LIMIT).unwrap();
+        prop_assert_eq!(got.winning, oracle.winning);
+        prop_assert_eq!(got.losing, oracle.losing);
+        prop_assert_eq!(got.proper, oracle.proper);
+        prop_assert_eq!(got.strong, oracle.strong);
+        prop_assert_eq!(got.smallest_winning, oracle.smallest_winning);
+        for i in 0..n {
+            prop_assert_eq!(members[i].swings, oracle_members[i].swings);
+            prop_assert_eq!(members[i].shapley_shubik_numerator, oracle_members[i].shapley_shubik_numerator);
+        }
+    }
+}
+
+#[test]
+fn memory_limit_is_an_error() {
+    let rule = Rule::weighted(6, vec![1u64, 2, 3, 4, 5]).unwrap();
+    let mut members = vec![MemberCounts::<u128>::EMPTY; 5];
+    let got = count(&rule, &mut members, Order::HeavyFirst, 64);
+    assert!(matches!(got, Err(Error::MemoryLimit { limit: 64, .. })));
+}
