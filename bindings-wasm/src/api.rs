@@ -92,8 +92,29 @@ impl Thrown {
     }
 }
 
+/// The library's hints name the command line's options; JavaScript callers
+/// pass options objects instead.
+const OPTION_NAMES: [(&str, &str); 11] = [
+    ("--budget STEPS", "the option `budget: STEPS`"),
+    ("--memory BYTES", "the option `memory: BYTES`"),
+    ("leave out --exact", "leave out `exact: true`"),
+    ("leave out --engine", "leave out `engine`"),
+    ("--by position", "`by: \"position\"`"),
+    ("--attr NAME", "`attribute: \"NAME\"`"),
+    ("--condition N", "`condition: N`"),
+    ("--ternary and --attendance", "`ternary` and `attendance`"),
+    ("e.g. --attendance 0.8", "e.g. `attendance: 0.8`"),
+    ("e.g. --tolerance 0.001", "e.g. `tolerance: 0.001`"),
+    ("--from is above --to", "`start` is above `stop`"),
+];
+
 impl From<Failure> for Box<Thrown> {
-    fn from(f: Failure) -> Box<Thrown> {
+    fn from(mut f: Failure) -> Box<Thrown> {
+        for text in [Some(&mut f.message), f.hint.as_mut()].into_iter().flatten() {
+            for (cli, js) in OPTION_NAMES {
+                *text = text.replace(cli, js);
+            }
+        }
         Box::new(Thrown {
             kind: match f.kind {
                 FailureKind::Limit => "limit",
@@ -419,6 +440,13 @@ mod tests {
         assert_eq!(e.hint.as_deref(), Some("did you mean `charter`?"));
         let e = loaded.report(json!({"budget": 1, "exact": true})).err().unwrap();
         assert_eq!(e.kind, "limit");
+        // The hint speaks of options objects, not of the command line's flags.
+        let hint = e.hint.unwrap();
+        assert!(
+            hint.contains("the option `budget: STEPS`") && hint.contains("leave out `exact: true`"),
+            "{hint}"
+        );
+        assert!(!hint.contains("--"), "{hint}");
         let e = loaded.decide(json!({"yes": ["harbour"]})).err().unwrap();
         assert_eq!(e.hint.as_deref(), Some("did you mean `harbor`?"));
     }

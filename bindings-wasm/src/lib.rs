@@ -46,8 +46,7 @@ pub fn examples() -> Result<JsValue, JsValue> {
 pub fn fit(
     #[wasm_bindgen(unchecked_param_type = "FitOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let options = from_js(Some(options))?;
-    to_js(&api::fit(options).map_err(throw)?)
+    relay(Some(options), api::fit)
 }
 
 /// A compiled rule file.
@@ -59,7 +58,7 @@ pub struct RuleFile {
 /// Compiles a rule file (or `[q; w1, ..., wn]`); throws a `CloutError` with
 /// every error's line and column when it does not compile.
 #[wasm_bindgen(unchecked_return_type = "RuleFile")]
-pub fn parse(text: JsValue) -> Result<RuleFile, JsValue> {
+pub fn parse(#[wasm_bindgen(unchecked_param_type = "string")] text: JsValue) -> Result<RuleFile, JsValue> {
     let Some(text) = text.as_string() else {
         return Err(throw(
             clout::Failure::input("parse: the rule text must be a string").into(),
