@@ -74,6 +74,20 @@ pub fn written(name: &str) -> Cow<'_, str> {
     Cow::Owned(out)
 }
 
+/// Any text (a motion's name, a file name) safe to print on a terminal:
+/// control and bidirectional formatting characters written as `\u{...}`,
+/// everything else as is, without quotes.
+pub fn shown(text: &str) -> Cow<'_, str> {
+    if !text.chars().any(needs_escape) {
+        return Cow::Borrowed(text);
+    }
+    Cow::Owned(
+        text.chars()
+            .map(|c| if needs_escape(c) { format!("\\u{{{:x}}}", u32::from(c)) } else { c.to_string() })
+            .collect(),
+    )
+}
+
 /// The text between the quotes of a quoted name, unescaped. On a bad
 /// escape: the byte offset of its backslash within `inner` and a message.
 pub fn unescape(inner: &str) -> Result<String, (usize, String)> {

@@ -660,8 +660,8 @@ rule charter = founders and lease_quorum
          coop.clout:20:24: error: expected a name, found `,`\n\
          \x20 20 | bloc founders = north, , west\n\
          \x20    |                        ^\n\
-         \x20    = hint: names start with a letter or `_`; keywords such as `count`, `of` and `rule` \
-         cannot be names\n"
+         \x20    = hint: names start with a letter or `_`, or are written in double quotes (`\"0x3f5a\"`); \
+         keywords such as `count`, `of` and `rule` are quoted to be names\n"
     );
 }
 
