@@ -45,7 +45,7 @@ pub enum AmountError {
 impl AmountError {
     /// A short message naming `written`, and a hint.
     pub fn describe(&self, written: &str, attribute: &str) -> (String, String) {
-        let shown = crate::quote::written(written);
+        let shown = format!("`{}`", crate::quote::shown(written));
         match self {
             AmountError::Empty => (
                 format!("the amount of `{attribute}` is empty"),

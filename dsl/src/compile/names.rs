@@ -708,10 +708,11 @@ impl<'a> Declared<'a> {
 }
 
 /// The smallest power of ten, written in the attribute's own unit (`0.001`,
-/// `1`, `1000`), that brings `total` base units to at most 2^62.
+/// `1`, `1000`), that brings `total` base units to at most 10^15 (room to
+/// spare below 2^64, and fine enough for a small rounding window).
 pub(super) fn suggested_unit(total: u128, decimals: u32) -> String {
     let mut k = 0u32;
-    while k < 38 && total / amount::pow10(k) > 1 << 62 {
+    while k < 38 && total / amount::pow10(k) > 1_000_000_000_000_000 {
         k += 1;
     }
     if k >= decimals {
