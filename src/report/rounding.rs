@@ -128,6 +128,23 @@ struct Span {
 /// rounded weights. `penrose` are the report's Penrose measures (for the
 /// Banzhaf bound).
 pub fn certify(file: &RuleFile, rule: &CompiledRule, penrose: &[f64]) -> Option<Rounding> {
+    certify_by(file, rule, penrose, Count::Auto)
+}
+
+/// How [`certify_by`] finds the coalitions that could be decided differently.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Count {
+    /// One by one up to [`BRUTE_FORCE`] members, else windows counted
+    /// exactly when that fits, else the bound.
+    Auto,
+    /// Windows counted exactly when that fits, else the bound.
+    Windows,
+    /// The bound alone.
+    Bound,
+}
+
+/// [`certify`] with the counting method chosen (for tests of each path).
+pub fn certify_by(file: &RuleFile, rule: &CompiledRule, penrose: &[f64], how: Count) -> Option<Rounding> {
     if rule.exact.iter().all(Option::is_none) {
         return None;
     }
@@ -167,7 +184,7 @@ pub fn certify(file: &RuleFile, rule: &CompiledRule, penrose: &[f64]) -> Option<
         });
     }
     let spans = merge(spans);
-    let (coalitions, coalitions_exact, share, method) = count(file, rule, &spans);
+    let (coalitions, coalitions_exact, share, method) = count(file, rule, &spans, how);
     let two_n = 2f64.powi(i32::try_from(n).unwrap_or(i32::MAX));
     let swings = coalitions.clone();
     let penrose_bound = (2.0 * share).min(1.0);
@@ -244,7 +261,7 @@ fn merge(mut spans: Vec<Span>) -> Vec<Span> {
 
 /// The coalitions that could be decided differently: (exact count if
 /// known, whether it counts exactly the differing ones, share bound, method).
-fn count(file: &RuleFile, rule: &CompiledRule, spans: &[Span]) -> (Option<String>, bool, f64, String) {
+fn count(file: &RuleFile, rule: &CompiledRule, spans: &[Span], how: Count) -> (Option<String>, bool, f64, String) {
     let r = &rule.rule;
     let n = r.members();
     if spans.is_empty() {
@@ -255,7 +272,7 @@ fn count(file: &RuleFile, rule: &CompiledRule, spans: &[Span]) -> (Option<String
             "no rounded sum can fall in a window".to_string(),
         );
     }
-    if n <= BRUTE_FORCE {
+    if n <= BRUTE_FORCE && how == Count::Auto {
         let differ = brute_force(file, rule);
         return (
             Some(differ.to_string()),
@@ -264,7 +281,7 @@ fn count(file: &RuleFile, rule: &CompiledRule, spans: &[Span]) -> (Option<String
             format!("every one of the 2^{n} coalitions decided on the exact amounts"),
         );
     }
-    if n <= 126 {
+    if n <= 126 && how != Count::Bound {
         let counted: Option<u128> = spans.iter().try_fold(0u128, |acc, s| {
             let w = r.attribute_weights(s.attribute);
             let at_least = |q: u64| winning(w, q);
