@@ -161,3 +161,84 @@ proptest! {
         }
     }
 }
+
+const TRANSIT: &str = include_str!("../examples/transit.clout");
+
+fn record_errors(table: &str) -> String {
+    let file = clout::compile(TRANSIT).unwrap();
+    let e = clout::record::read(&file, "m.csv", table.as_bytes()).unwrap_err();
+    clout_dsl::render_all(&e, "m.csv", "")
+}
+
+#[test]
+fn ballot_files_are_refused_with_their_place() {
+    let cases: [(&str, &str); 5] = [
+        (
+            "vote,harbor\nm1,yes\n",
+            "m.csv:1:1: error: the header starts with `vote`, not `motion`\n   1 | vote,harbor\n     | ^^^^\n     = hint: a ballot file's header is `motion,<member>,<member>,...` (one row per motion) or `motion,member,vote` (one row per vote)\n",
+        ),
+        (
+            "motion,harbour,mill\nm1,yes,no\n",
+            "m.csv:1:8: error: unknown member harbour\n   1 | motion,harbour,mill\n     |        ^^^^^^^\n     = hint: did you mean harbor?\n",
+        ),
+        (
+            "motion,harbor,mill\nm1,yes,maybe\n",
+            "m.csv:2:8: error: `maybe` is not a vote\n   2 | m1,yes,maybe\n     |        ^^^^^\n     = hint: a vote is `yes`, `no`, `abstain` or `absent` (also `y`, `n`, `a`, `-`, in any case)\n",
+        ),
+        (
+            "motion,harbor\nm1,y\nm1,n\n",
+            "m.csv:3:1: error: motion m1 is recorded twice\n   3 | m1,n\n     | ^^\n     = hint: it is already on line 2; give each motion one row\n",
+        ),
+        (
+            "motion,member,vote\nm1,harbor,y\nm1,harbor,n\n",
+            "m.csv:3:1: error: harbor votes twice on motion m1\n   3 | m1,harbor,n\n     | ^\n     = hint: the first vote is on line 2; keep one row per member and motion\n",
+        ),
+    ];
+    for (table, want) in cases {
+        assert_eq!(record_errors(table), want, "{table}");
+    }
+}
+
+#[test]
+fn a_record_of_200000_votes_is_read_and_decided() {
+    let file = clout::compile(TRANSIT).unwrap();
+    let mut text = String::from("motion,member,vote\n");
+    let mut rows = 0;
+    let mut m = 0;
+    while rows < 200_000 {
+        for (i, member) in file.members.iter().enumerate() {
+            let vote = ["y", "N", "a", "-"][(i + m) % 4];
+            text.push_str(&format!("\"motion {m}, part {}\",{},{vote}\n", m % 7, member.name));
+            rows += 1;
+        }
+        m += 1;
+    }
+    let motions = clout::record::read(&file, "m.csv", text.as_bytes()).unwrap();
+    assert_eq!(motions.len(), m);
+    assert_eq!(motions[1].name, "motion 1, part 1");
+    assert_eq!(motions[1].votes[..3], [clout::Vote::No, clout::Vote::Abstain, clout::Vote::Absent]);
+    let rule = file.rule(None).unwrap();
+    let record = clout::record::decide_all(&file, rule, &motions[..50], Some((&file, rule))).unwrap();
+    assert!(record.differing().is_empty());
+    // Wide and long layouts of the same votes decide the same.
+    let wide: String = std::iter::once(format!(
+        "motion,{}\n",
+        file.members.iter().map(|x| x.name.as_str()).collect::<Vec<_>>().join(",")
+    ))
+    .chain(motions[..50].iter().map(|mo| {
+        let cells: Vec<&str> = mo
+            .votes
+            .iter()
+            .map(|v| match v {
+                clout::Vote::Yes => "yes",
+                clout::Vote::No => "no",
+                clout::Vote::Abstain => "abstain",
+                clout::Vote::Absent => "absent",
+            })
+            .collect();
+        format!("\"{}\",{}\n", mo.name, cells.join(","))
+    }))
+    .collect();
+    let again = clout::record::read(&file, "w.csv", wide.as_bytes()).unwrap();
+    assert_eq!(again, motions[..50].to_vec());
+}
