@@ -211,8 +211,9 @@ impl RuleFile {
             .chain(self.blocs.iter().map(|b| b.name.as_str()))
     }
 
-    /// Names of `members` (ascending indices), with runs of one group's
-    /// members written `NAMEi..NAMEj`.
+    /// Names of `members` (ascending indices) as written in rule text
+    /// (quoted when not plain), with runs of one group's members written
+    /// `NAMEi..NAMEj`.
     pub fn describe_members(&self, members: &[usize]) -> Vec<String> {
         let mut out = Vec::new();
         let mut k = 0;
@@ -227,12 +228,16 @@ impl RuleFile {
             {
                 last += 1;
             }
-            let name = |i: usize| self.members.get(i).map_or("?", |m| m.name.as_str());
+            let name = |i: usize| {
+                self.members
+                    .get(i)
+                    .map_or(std::borrow::Cow::Borrowed("?"), |m| crate::quote::written(&m.name))
+            };
             match last - k {
-                0 => out.push(name(first).to_string()),
+                0 => out.push(name(first).into_owned()),
                 1 => {
-                    out.push(name(first).to_string());
-                    out.push(name(members[last]).to_string());
+                    out.push(name(first).into_owned());
+                    out.push(name(members[last]).into_owned());
                 }
                 _ => out.push(format!("{}..{}", name(first), name(members[last]))),
             }
