@@ -233,8 +233,13 @@ fn exact_critical(file: &RuleFile, rule: &CompiledRule, votes: &[Vote], passed: 
             _ => continue,
         };
         switched[i] = to;
-        let pick = |want: Vote| -> Vec<usize> { (0..switched.len()).filter(|&j| switched[j] == want).collect() };
-        let met = rounding::conditions_met(file, rule, [&pick(Vote::Yes), &pick(Vote::No), &pick(Vote::Abstain)]);
+        let pick =
+            |want: Vote| -> Vec<usize> { (0..switched.len()).filter(|&j| switched[j] == want).collect() };
+        let met = rounding::conditions_met(
+            file,
+            rule,
+            [&pick(Vote::Yes), &pick(Vote::No), &pick(Vote::Abstain)],
+        );
         if rule.rule.eval(|k| met[k]) != passed {
             out.push(i);
         }

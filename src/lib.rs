@@ -25,9 +25,9 @@ pub use clout_dsl as language;
 pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 
 pub mod decision;
-pub mod record;
 pub mod drafting;
 mod failure;
+pub mod record;
 pub mod report;
 pub mod scenarios;
 pub mod toolkit;

@@ -111,7 +111,11 @@ pub fn read(file: &RuleFile, name: &str, bytes: &[u8]) -> Result<Vec<Motion>, Ve
         }
     };
     if errors.is_empty() && motions.is_empty() {
-        errors.push(table.error(At::Start, "the file records no motion".to_string(), "add one row per motion after the header"));
+        errors.push(table.error(
+            At::Start,
+            "the file records no motion".to_string(),
+            "add one row per motion after the header",
+        ));
     }
     if errors.is_empty() {
         Ok(motions)
@@ -121,7 +125,13 @@ pub fn read(file: &RuleFile, name: &str, bytes: &[u8]) -> Result<Vec<Motion>, Ve
 }
 
 /// The member called `name` in `file`, or an error at `at`.
-fn member(file: &RuleFile, index: &HashMap<&str, usize>, table: &Table, at: At, name: &str) -> Result<usize, Diagnostic> {
+fn member(
+    file: &RuleFile,
+    index: &HashMap<&str, usize>,
+    table: &Table,
+    at: At,
+    name: &str,
+) -> Result<usize, Diagnostic> {
     index.get(name).copied().ok_or_else(|| {
         let hint = match closest(name, file.members.iter().map(|m| m.name.as_str())) {
             Some(c) => format!("did you mean {}?", written(c)),
@@ -132,7 +142,11 @@ fn member(file: &RuleFile, index: &HashMap<&str, usize>, table: &Table, at: At, 
 }
 
 fn index(file: &RuleFile) -> HashMap<&str, usize> {
-    file.members.iter().enumerate().map(|(i, m)| (m.name.as_str(), i)).collect()
+    file.members
+        .iter()
+        .enumerate()
+        .map(|(i, m)| (m.name.as_str(), i))
+        .collect()
 }
 
 fn wide(file: &RuleFile, table: &Table, errors: &mut Vec<Diagnostic>) -> Vec<Motion> {
@@ -140,7 +154,11 @@ fn wide(file: &RuleFile, table: &Table, errors: &mut Vec<Diagnostic>) -> Vec<Mot
     let columns: Vec<Option<usize>> = table.columns[1..]
         .iter()
         .enumerate()
-        .map(|(c, name)| member(file, &index, table, At::Column(c + 1), name).map_err(|e| errors.push(e)).ok())
+        .map(|(c, name)| {
+            member(file, &index, table, At::Column(c + 1), name)
+                .map_err(|e| errors.push(e))
+                .ok()
+        })
         .collect();
     if !errors.is_empty() {
         return Vec::new();
@@ -156,7 +174,9 @@ fn wide(file: &RuleFile, table: &Table, errors: &mut Vec<Diagnostic>) -> Vec<Mot
         for (c, cell) in row[1..].iter().enumerate() {
             match (parse_vote(cell), columns[c]) {
                 (Some(v), Some(i)) => votes[i] = v,
-                (None, _) => errors.push(table.error(At::Cell(r, c + 1), format!("`{cell}` is not a vote"), VOTE_HINT)),
+                (None, _) => {
+                    errors.push(table.error(At::Cell(r, c + 1), format!("`{cell}` is not a vote"), VOTE_HINT))
+                }
                 _ => {}
             }
         }
@@ -177,14 +197,21 @@ fn motion_name<'t>(
     errors: &mut Vec<Diagnostic>,
 ) -> bool {
     if name.is_empty() {
-        errors.push(table.error(At::Cell(r, 0), "a motion without a name".to_string(), "name every motion in the first column"));
+        errors.push(table.error(
+            At::Cell(r, 0),
+            "a motion without a name".to_string(),
+            "name every motion in the first column",
+        ));
         return false;
     }
     if let Some(&first) = seen.get(name) {
         errors.push(table.error(
             At::Cell(r, 0),
             format!("motion {} is recorded twice", written(name)),
-            format!("it is already on line {}; give each motion one row", table.line_of(first)),
+            format!(
+                "it is already on line {}; give each motion one row",
+                table.line_of(first)
+            ),
         ));
         return false;
     }
@@ -201,7 +228,11 @@ fn long(file: &RuleFile, table: &Table, errors: &mut Vec<Diagnostic>) -> Vec<Mot
     for (r, row) in table.rows.iter().enumerate() {
         let (name, who, vote) = (row[0].as_str(), row[1].as_str(), row[2].as_str());
         if name.is_empty() {
-            errors.push(table.error(At::Cell(r, 0), "a vote without a motion".to_string(), "name the motion in the first column"));
+            errors.push(table.error(
+                At::Cell(r, 0),
+                "a vote without a motion".to_string(),
+                "name the motion in the first column",
+            ));
             continue;
         }
         let m = *order.entry(name).or_insert_with(|| {
@@ -226,7 +257,10 @@ fn long(file: &RuleFile, table: &Table, errors: &mut Vec<Diagnostic>) -> Vec<Mot
             errors.push(table.error(
                 At::Row(r),
                 format!("{} votes twice on motion {}", written(who), written(name)),
-                format!("the first vote is on line {}; keep one row per member and motion", table.line_of(first)),
+                format!(
+                    "the first vote is on line {}; keep one row per member and motion",
+                    table.line_of(first)
+                ),
             ));
             continue;
         }

@@ -72,7 +72,10 @@ proptest! {
 /// (independently of the compiler's quotas): `x` exact base units.
 fn exact_passes(form: usize, x: &[u128], coalition: u32) -> bool {
     let total: u128 = x.iter().sum();
-    let yes: u128 = (0..x.len()).filter(|&i| coalition >> i & 1 == 1).map(|i| x[i]).sum();
+    let yes: u128 = (0..x.len())
+        .filter(|&i| coalition >> i & 1 == 1)
+        .map(|i| x[i])
+        .sum();
     let members = coalition.count_ones();
     match form {
         0 => 2 * yes > total,
@@ -105,8 +108,14 @@ fn brute_indices(n: usize, passes: impl Fn(u32) -> bool) -> (Vec<u64>, Vec<f64>,
         }
     }
     let total: u64 = swings.iter().sum();
-    let penrose = swings.iter().map(|&s| s as f64 / f64::from(1u32 << (n - 1))).collect();
-    let banzhaf = swings.iter().map(|&s| if total == 0 { 0.0 } else { s as f64 / total as f64 }).collect();
+    let penrose = swings
+        .iter()
+        .map(|&s| s as f64 / f64::from(1u32 << (n - 1)))
+        .collect();
+    let banzhaf = swings
+        .iter()
+        .map(|&s| if total == 0 { 0.0 } else { s as f64 / total as f64 })
+        .collect();
     (swings, penrose, banzhaf, ss)
 }
 
@@ -208,7 +217,11 @@ fn a_record_of_200000_votes_is_read_and_decided() {
     while rows < 200_000 {
         for (i, member) in file.members.iter().enumerate() {
             let vote = ["y", "N", "a", "-"][(i + m) % 4];
-            text.push_str(&format!("\"motion {m}, part {}\",{},{vote}\n", m % 7, member.name));
+            text.push_str(&format!(
+                "\"motion {m}, part {}\",{},{vote}\n",
+                m % 7,
+                member.name
+            ));
             rows += 1;
         }
         m += 1;
@@ -216,14 +229,21 @@ fn a_record_of_200000_votes_is_read_and_decided() {
     let motions = clout::record::read(&file, "m.csv", text.as_bytes()).unwrap();
     assert_eq!(motions.len(), m);
     assert_eq!(motions[1].name, "motion 1, part 1");
-    assert_eq!(motions[1].votes[..3], [clout::Vote::No, clout::Vote::Abstain, clout::Vote::Absent]);
+    assert_eq!(
+        motions[1].votes[..3],
+        [clout::Vote::No, clout::Vote::Abstain, clout::Vote::Absent]
+    );
     let rule = file.rule(None).unwrap();
     let record = clout::record::decide_all(&file, rule, &motions[..50], Some((&file, rule))).unwrap();
     assert!(record.differing().is_empty());
     // Wide and long layouts of the same votes decide the same.
     let wide: String = std::iter::once(format!(
         "motion,{}\n",
-        file.members.iter().map(|x| x.name.as_str()).collect::<Vec<_>>().join(",")
+        file.members
+            .iter()
+            .map(|x| x.name.as_str())
+            .collect::<Vec<_>>()
+            .join(",")
     ))
     .chain(motions[..50].iter().map(|mo| {
         let cells: Vec<&str> = mo

@@ -56,7 +56,12 @@ pub fn run(args: &DecideArgs) -> Result<Outcome, Failure> {
 }
 
 /// `decide --ballots FILE [--against RULE|FILE]`: every recorded motion.
-fn run_record(args: &DecideArgs, input: &Input, rule: &CompiledRule, path: &std::path::Path) -> Result<Outcome, Failure> {
+fn run_record(
+    args: &DecideArgs,
+    input: &Input,
+    rule: &CompiledRule,
+    path: &std::path::Path,
+) -> Result<Outcome, Failure> {
     let shown = path.display().to_string();
     let bytes = std::fs::File::open(path)
         .and_then(|f| read_bounded(f, MAX_TABLE_LEN))
@@ -64,7 +69,10 @@ fn run_record(args: &DecideArgs, input: &Input, rule: &CompiledRule, path: &std:
     let motions = record::read(&input.file, &shown, &bytes).map_err(|errors| {
         let mut text = clout_dsl::render_all(&errors, &shown, "");
         let n = clout_dsl::error_count(&errors);
-        text.push_str(&format!("{n} error{} in {shown}\n", if n == 1 { "" } else { "s" }));
+        text.push_str(&format!(
+            "{n} error{} in {shown}\n",
+            if n == 1 { "" } else { "s" }
+        ));
         Failure::rendered(text)
     })?;
     // A rule of the same file, or another file.
@@ -80,21 +88,46 @@ fn run_record(args: &DecideArgs, input: &Input, rule: &CompiledRule, path: &std:
             Some((&other_input.file, r, format!("rule `{}` of {file}", r.name)))
         }
     };
-    let decided = record::decide_all(&input.file, rule, &motions, other.as_ref().map(|(f, r, _)| (*f, *r)))?;
+    let decided = record::decide_all(
+        &input.file,
+        rule,
+        &motions,
+        other.as_ref().map(|(f, r, _)| (*f, *r)),
+    )?;
     let out = match args.format {
         DecideFormat::Json => json(&decided.motions),
-        DecideFormat::Text => text_record(input, rule, &shown, &decided, other.as_ref().map(|o| o.2.as_str())),
+        DecideFormat::Text => text_record(
+            input,
+            rule,
+            &shown,
+            &decided,
+            other.as_ref().map(|o| o.2.as_str()),
+        ),
     };
     Ok(Outcome::ok(out))
 }
 
-fn text_record(input: &Input, rule: &CompiledRule, shown: &str, record: &Record, other: Option<&str>) -> String {
+fn text_record(
+    input: &Input,
+    rule: &CompiledRule,
+    shown: &str,
+    record: &Record,
+    other: Option<&str>,
+) -> String {
     let file = &input.file;
     let n = record.motions.len();
     let mut out = String::new();
-    let _ = writeln!(out, "{}: rule `{}`, {n} recorded motions ({shown})", input.title(), rule.name);
+    let _ = writeln!(
+        out,
+        "{}: rule `{}`, {n} recorded motions ({shown})",
+        input.title(),
+        rule.name
+    );
     let _ = writeln!(out, "  {}\n", rule.text);
-    let mut columns = vec![("motion".to_string(), Align::Left), ("outcome".to_string(), Align::Left)];
+    let mut columns = vec![
+        ("motion".to_string(), Align::Left),
+        ("outcome".to_string(), Align::Left),
+    ];
     for c in &rule.conditions {
         columns.push((c.text.clone(), Align::Right));
     }
@@ -102,7 +135,10 @@ fn text_record(input: &Input, rule: &CompiledRule, shown: &str, record: &Record,
     let mut table = Table::new(columns);
     for m in &record.motions {
         let d = &m.decision;
-        let mut row = vec![safe(&m.motion).into_owned(), if d.passed { "passes" } else { "fails" }.to_string()];
+        let mut row = vec![
+            safe(&m.motion).into_owned(),
+            if d.passed { "passes" } else { "fails" }.to_string(),
+        ];
         for t in &d.conditions {
             let cell = match (&t.needed, &t.margin) {
                 (Some(needed), Some(margin)) => {
@@ -110,9 +146,18 @@ fn text_record(input: &Input, rule: &CompiledRule, shown: &str, record: &Record,
                         Some(d) => ("-", d),
                         None => ("+", margin.as_str()),
                     };
-                    format!("{}/{} {sign}{}", text::thousands(&t.sum), text::thousands(needed), text::thousands(digits))
+                    format!(
+                        "{}/{} {sign}{}",
+                        text::thousands(&t.sum),
+                        text::thousands(needed),
+                        text::thousands(digits)
+                    )
                 }
-                _ => format!("{} {}", text::thousands(&t.sum), if t.met { "met" } else { "not met" }),
+                _ => format!(
+                    "{} {}",
+                    text::thousands(&t.sum),
+                    if t.met { "met" } else { "not met" }
+                ),
             };
             row.push(cell);
         }
@@ -141,7 +186,11 @@ fn text_record(input: &Input, rule: &CompiledRule, shown: &str, record: &Record,
         ("share".to_string(), Align::Right),
     ]);
     let never: Vec<usize> = {
-        let mut v: Vec<usize> = order.iter().copied().filter(|&i| record.critical[i] == 0).collect();
+        let mut v: Vec<usize> = order
+            .iter()
+            .copied()
+            .filter(|&i| record.critical[i] == 0)
+            .collect();
         v.sort_unstable();
         v
     };
@@ -154,18 +203,36 @@ fn text_record(input: &Input, rule: &CompiledRule, shown: &str, record: &Record,
     }
     out.push_str(&indent(&summary.render()));
     if !never.is_empty() {
-        let _ = writeln!(out, "  never critical: {}", file.describe_members(&never).join(", "));
+        let _ = writeln!(
+            out,
+            "  never critical: {}",
+            file.describe_members(&never).join(", ")
+        );
     }
     if let Some(other) = other {
         let differing = record.differing();
         if differing.is_empty() {
-            let _ = writeln!(out, "\nAgainst {other}: every one of the {n} motions is decided the same.");
+            let _ = writeln!(
+                out,
+                "\nAgainst {other}: every one of the {n} motions is decided the same."
+            );
         } else {
-            let _ = writeln!(out, "\nAgainst {other}: {} of the {n} motions are decided differently:", differing.len());
+            let _ = writeln!(
+                out,
+                "\nAgainst {other}: {} of the {n} motions are decided differently:",
+                differing.len()
+            );
             for m in differing {
                 let (here, there) = (m.decision.passed, m.against.as_ref().is_some_and(|a| a.passed));
                 let word = |p: bool| if p { "passes" } else { "fails" };
-                let _ = writeln!(out, "  {}: {} under `{}`, {} under the other", safe(&m.motion), word(here), rule.name, word(there));
+                let _ = writeln!(
+                    out,
+                    "  {}: {} under `{}`, {} under the other",
+                    safe(&m.motion),
+                    word(here),
+                    rule.name,
+                    word(there)
+                );
             }
         }
     }

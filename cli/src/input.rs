@@ -38,7 +38,9 @@ impl Input {
             (Some(path), _) => {
                 let bytes = std::fs::File::open(path)
                     .and_then(|f| read_bounded(f, MAX_SOURCE_LEN))
-                    .map_err(|e| Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e))))?;
+                    .map_err(|e| {
+                        Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e)))
+                    })?;
                 let name = path.display().to_string();
                 let source = text(bytes, &name)?;
                 let base = path.parent().map(Path::to_path_buf).unwrap_or_default();

@@ -420,7 +420,11 @@ fn rounding_text(out: &mut String, report: &Report) {
     for w in &c.windows {
         let window = match (&w.from, &w.to) {
             (Some(f), Some(t)) if f == t => format!("a rounded sum of {} units", text::thousands(f)),
-            (Some(f), Some(t)) => format!("rounded sums {}..{} units", text::thousands(f), text::thousands(t)),
+            (Some(f), Some(t)) => format!(
+                "rounded sums {}..{} units",
+                text::thousands(f),
+                text::thousands(t)
+            ),
             _ => "no rounded sum".to_string(),
         };
         let _ = writeln!(
@@ -433,21 +437,31 @@ fn rounding_text(out: &mut String, report: &Report) {
         );
     }
     let how_many = match (&c.coalitions, c.coalitions_exact) {
-        (Some(n), true) => format!("exactly {} coalitions", text::count(n)),
+        (Some(n), true) => format!(
+            "exactly {} coalition{}",
+            text::count(n),
+            if n == "1" { "" } else { "s" }
+        ),
         (Some(n), false) => format!("at most {} coalitions ({:.2e} of all)", text::count(n), c.share),
         (None, _) => format!("at most {:.2e} of all coalitions", c.share),
     };
     let _ = writeln!(
         out,
         "Decided differently by the exact amounts: {how_many}; {}.\n\
-         So each figure is within its rounding bound of the exact amounts' figure: swings ±{}, penrose ±{:.1e},\n\
+         So each figure is within its rounding bound of the exact amounts' figure: {}penrose ±{:.1e},\n\
          banzhaf ±{:.1e}, shapley-shubik ±{:.1e}{}.",
         c.method,
-        c.swings.as_deref().map_or("(share above × 2^n)".to_string(), text::count),
+        c.swings
+            .as_deref()
+            .map_or(String::new(), |s| format!("swings ±{}, ", text::count(s))),
         c.penrose,
         c.banzhaf,
         c.shapley_shubik,
-        if c.shapley_shubik >= 1.0 { " (no useful bound)" } else { "" }
+        if c.shapley_shubik >= 1.0 {
+            " (no useful bound)"
+        } else {
+            ""
+        }
     );
 }
 

@@ -200,7 +200,10 @@ mod tests {
         );
         assert_eq!(parse(&"9".repeat(40), 0), Err(AmountError::TooLarge));
         assert_eq!(parse(&MAX_EXACT_TOTAL.to_string(), 0), Ok(MAX_EXACT_TOTAL));
-        assert_eq!(parse(&(MAX_EXACT_TOTAL + 1).to_string(), 0), Err(AmountError::TooLarge));
+        assert_eq!(
+            parse(&(MAX_EXACT_TOTAL + 1).to_string(), 0),
+            Err(AmountError::TooLarge)
+        );
     }
 
     #[test]

@@ -93,7 +93,10 @@ impl Table {
             table.text = String::from_utf8_lossy(&bytes[..end]).into_owned();
             return Err(table.error(
                 At::Start,
-                format!("the table is {} bytes, over the limit of {MAX_TABLE_LEN} (64 MiB)", bytes.len()),
+                format!(
+                    "the table is {} bytes, over the limit of {MAX_TABLE_LEN} (64 MiB)",
+                    bytes.len()
+                ),
                 "split the table, or leave out columns the rule does not use",
             ));
         }
@@ -105,7 +108,10 @@ impl Table {
                 let place = table.place(at, 1);
                 return Err(Diagnostic::error(
                     Span::default(),
-                    format!("the table is not UTF-8 text: byte 0x{:02X} cannot start or continue a character", bytes[at]),
+                    format!(
+                        "the table is not UTF-8 text: byte 0x{:02X} cannot start or continue a character",
+                        bytes[at]
+                    ),
                 )
                 .with_hint("save the table as UTF-8 (spreadsheets call it \"CSV UTF-8\")")
                 .in_table(place));
@@ -120,7 +126,11 @@ impl Table {
             table.read_csv()?;
         }
         if table.columns.is_empty() {
-            return Err(table.error(At::Start, "the table is empty".to_string(), "a table starts with a header naming its columns"));
+            return Err(table.error(
+                At::Start,
+                "the table is empty".to_string(),
+                "a table starts with a header naming its columns",
+            ));
         }
         Ok(table)
     }
@@ -157,9 +167,16 @@ impl Table {
                 self.column_at.get(c).copied().unwrap_or(0),
                 self.columns.get(c).map_or(1, |s| width(s)),
             ),
-            At::Row(r) => (self.row_at.get(r).and_then(|o| o.first()).copied().unwrap_or(0), 1),
+            At::Row(r) => (
+                self.row_at.get(r).and_then(|o| o.first()).copied().unwrap_or(0),
+                1,
+            ),
             At::Cell(r, c) => {
-                let cell = self.rows.get(r).and_then(|row| row.get(c)).map_or(1, |s| width(s));
+                let cell = self
+                    .rows
+                    .get(r)
+                    .and_then(|row| row.get(c))
+                    .map_or(1, |s| width(s));
                 let offset = match self.format {
                     Format::Json => self.row_at.get(r).and_then(|o| o.get(c)).copied(),
                     Format::Csv => self
@@ -177,7 +194,9 @@ impl Table {
         let offset = floor_boundary(self.text.as_bytes(), offset);
         let (line, column) = self.lines().line_col(&self.text, offset);
         let start = self.text[..offset].rfind('\n').map_or(0, |i| i + 1);
-        let end = self.text[offset..].find('\n').map_or(self.text.len(), |i| offset + i);
+        let end = self.text[offset..]
+            .find('\n')
+            .map_or(self.text.len(), |i| offset + i);
         let text = self.text[start..end]
             .trim_end_matches('\r')
             .trim_start_matches('\u{feff}')
@@ -293,7 +312,11 @@ impl Table {
                 return Err(self.error(
                     At::Column(c),
                     format!("the header names `{name}` twice"),
-                    format!("columns {} and {} have the same name; rename one", first + 1, c + 1),
+                    format!(
+                        "columns {} and {} have the same name; rename one",
+                        first + 1,
+                        c + 1
+                    ),
                 ));
             }
         }
@@ -334,15 +357,28 @@ impl Table {
             for cell in &row {
                 let Some(c) = self.column(&cell.key) else {
                     let place = self.place(cell.key_at, cell.key.chars().count() + 2);
-                    return Err(Diagnostic::error(Span::default(), format!("row {} has a key `{}` the first row does not have", r + 1, cell.key))
-                        .with_hint(format!("every object has the keys of the first ({})", self.columns.join(", ")))
-                        .in_table(place));
+                    return Err(Diagnostic::error(
+                        Span::default(),
+                        format!(
+                            "row {} has a key `{}` the first row does not have",
+                            r + 1,
+                            cell.key
+                        ),
+                    )
+                    .with_hint(format!(
+                        "every object has the keys of the first ({})",
+                        self.columns.join(", ")
+                    ))
+                    .in_table(place));
                 };
                 if cells[c].is_some() {
                     let place = self.place(cell.key_at, cell.key.chars().count() + 2);
-                    return Err(Diagnostic::error(Span::default(), format!("row {} gives `{}` twice", r + 1, cell.key))
-                        .with_hint("give each key once per object")
-                        .in_table(place));
+                    return Err(Diagnostic::error(
+                        Span::default(),
+                        format!("row {} gives `{}` twice", r + 1, cell.key),
+                    )
+                    .with_hint("give each key once per object")
+                    .in_table(place));
                 }
                 cells[c] = Some(cell.value.clone());
                 offsets[c] = cell.value_at;
@@ -350,11 +386,18 @@ impl Table {
             let object_at = row.first().map_or(0, |c| c.key_at);
             if let Some(missing) = cells.iter().position(Option::is_none) {
                 let place = self.place(object_at, 1);
-                return Err(Diagnostic::error(Span::default(), format!("row {} has no `{}`", r + 1, self.columns[missing]))
-                    .with_hint(format!("every object has the keys of the first ({})", self.columns.join(", ")))
-                    .in_table(place));
+                return Err(Diagnostic::error(
+                    Span::default(),
+                    format!("row {} has no `{}`", r + 1, self.columns[missing]),
+                )
+                .with_hint(format!(
+                    "every object has the keys of the first ({})",
+                    self.columns.join(", ")
+                ))
+                .in_table(place));
             }
-            self.rows.push(cells.into_iter().map(Option::unwrap_or_default).collect());
+            self.rows
+                .push(cells.into_iter().map(Option::unwrap_or_default).collect());
             self.row_at.push(offsets);
         }
         Ok(())
@@ -362,7 +405,12 @@ impl Table {
 
     /// Byte offset of 1-based `line` and `column` (serde_json's column counts bytes).
     fn lines_offset(&self, line: usize, column: usize) -> usize {
-        let start = self.text.split_inclusive('\n').take(line.saturating_sub(1)).map(str::len).sum::<usize>();
+        let start = self
+            .text
+            .split_inclusive('\n')
+            .take(line.saturating_sub(1))
+            .map(str::len)
+            .sum::<usize>();
         (start + column.saturating_sub(1)).min(self.text.len())
     }
 }
@@ -432,7 +480,8 @@ fn parse_json(text: &str) -> Result<Vec<Vec<JsonCell>>, JsonError> {
                 JsonError::Shape(
                     skipped,
                     "the table is not an array of objects".to_string(),
-                    "a JSON table is `[{\"name\": \"a\", \"votes\": \"12.5\"}, ...]`, one object per row".to_string(),
+                    "a JSON table is `[{\"name\": \"a\", \"votes\": \"12.5\"}, ...]`, one object per row"
+                        .to_string(),
                 )
             } else {
                 JsonError::Syntax(e)
@@ -555,7 +604,8 @@ mod tests {
 
     #[test]
     fn json_keeps_numbers_as_written_and_places_cells() {
-        let text = "[\n {\"name\": \"a\", \"votes\": 1520.565494},\n {\"votes\": \"2\", \"name\": \"b\\u00e9\"}\n]";
+        let text =
+            "[\n {\"name\": \"a\", \"votes\": 1520.565494},\n {\"votes\": \"2\", \"name\": \"b\\u00e9\"}\n]";
         let t = Table::read("t.json", text.as_bytes()).unwrap();
         assert_eq!(t.columns, ["name", "votes"]);
         assert_eq!(t.rows, [["a", "1520.565494"], ["bé", "2"]]);
@@ -571,14 +621,20 @@ mod tests {
              \x20  3 | b\n\x20    | ^\n\
              \x20    = hint: every row needs one field per column of the header (name, votes); quote a field that holds a comma\n"
         );
-        assert!(rendered("t.csv", "name,votes\na,1,2\n").starts_with("t.csv:2:5: error: row has 3 fields, the header 2"));
-        assert!(rendered("t.csv", "name,name\n").starts_with("t.csv:1:6: error: the header names `name` twice"));
+        assert!(rendered("t.csv", "name,votes\na,1,2\n")
+            .starts_with("t.csv:2:5: error: row has 3 fields, the header 2"));
+        assert!(
+            rendered("t.csv", "name,name\n").starts_with("t.csv:1:6: error: the header names `name` twice")
+        );
         assert!(rendered("t.csv", "").starts_with("t.csv:1:1: error: the table is empty"));
-        assert!(rendered("t.json", "[{\"a\": 1}, {\"a\": 2, \"b\": 3}]").starts_with("t.json:1:21: error: row 2 has a key `b`"));
+        assert!(rendered("t.json", "[{\"a\": 1}, {\"a\": 2, \"b\": 3}]")
+            .starts_with("t.json:1:21: error: row 2 has a key `b`"));
         assert!(rendered("t.json", "[{\"a\": 1}, {}]").contains("row 2 has no `a`"));
-        assert!(rendered("t.json", "[{\"a\": [1]}]").starts_with("t.json:1:8: error: the value of `a` in row 1 is not a string or a number"));
+        assert!(rendered("t.json", "[{\"a\": [1]}]")
+            .starts_with("t.json:1:8: error: the value of `a` in row 1 is not a string or a number"));
         assert!(rendered("t.json", "{\"a\": 1}").contains("not an array of objects"));
-        assert!(rendered("t.json", "[{\"a\": 1},\n {\"a\": 2,}]").starts_with("t.json:2:10: error: the table is not valid JSON: trailing comma"));
+        assert!(rendered("t.json", "[{\"a\": 1},\n {\"a\": 2,}]")
+            .starts_with("t.json:2:10: error: the table is not valid JSON: trailing comma"));
         let bytes = b"name,votes\na\xff,1\n";
         let e = Table::read("t.csv", bytes).unwrap_err();
         assert_eq!(e.line_col(""), (2, 2));

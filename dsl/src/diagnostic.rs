@@ -238,7 +238,10 @@ impl Diagnostic {
             self.severity.label(),
             printable(&self.message)
         );
-        let chars: Vec<char> = text.chars().map(|c| if c == '\t' { ' ' } else { shown(c) }).collect();
+        let chars: Vec<char> = text
+            .chars()
+            .map(|c| if c == '\t' { ' ' } else { shown(c) })
+            .collect();
         let col = column.saturating_sub(1).min(chars.len());
         let first = if chars.len() > LINE_WINDOW {
             col.saturating_sub(LINE_WINDOW / 4)
@@ -249,7 +252,9 @@ impl Diagnostic {
         let before = if first > 0 { "..." } else { "" };
         let after = if last < chars.len() { "..." } else { "" };
         let window: String = chars[first.min(last)..last].iter().collect();
-        let width = (*width).max(1).min(LINE_WINDOW.saturating_sub(col - first).max(1));
+        let width = (*width)
+            .max(1)
+            .min(LINE_WINDOW.saturating_sub(col - first).max(1));
         let gutter = line.to_string().len().max(4);
         let _ = writeln!(out, "{line:>gutter$} | {before}{window}{after}");
         let _ = writeln!(

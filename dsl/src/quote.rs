@@ -83,7 +83,13 @@ pub fn shown(text: &str) -> Cow<'_, str> {
     }
     Cow::Owned(
         text.chars()
-            .map(|c| if needs_escape(c) { format!("\\u{{{:x}}}", u32::from(c)) } else { c.to_string() })
+            .map(|c| {
+                if needs_escape(c) {
+                    format!("\\u{{{:x}}}", u32::from(c))
+                } else {
+                    c.to_string()
+                }
+            })
             .collect(),
     )
 }
@@ -112,7 +118,9 @@ pub fn unescape(inner: &str) -> Result<String, (usize, String)> {
                     .map(|(hex, _)| hex)
                     .filter(|hex| (1..=6).contains(&hex.len()));
                 let Some(hex) = code else {
-                    return Err(bad("`\\u` needs a code point in braces, e.g. `\\u{e9}`".to_string()));
+                    return Err(bad(
+                        "`\\u` needs a code point in braces, e.g. `\\u{e9}`".to_string()
+                    ));
                 };
                 let c = u32::from_str_radix(hex, 16)
                     .ok()
@@ -190,7 +198,15 @@ mod tests {
 
     #[test]
     fn unescape_inverts_written() {
-        for name in ["0x3f", "Zoë", "a\"b\\c", "tab\there", "x\u{202e}y\u{1b}[31m", "", "😀 x"] {
+        for name in [
+            "0x3f",
+            "Zoë",
+            "a\"b\\c",
+            "tab\there",
+            "x\u{202e}y\u{1b}[31m",
+            "",
+            "😀 x",
+        ] {
             let w = written(name);
             let inner = &w[1..w.len() - 1];
             assert_eq!(unescape(inner).as_deref(), Ok(name), "{w}");

@@ -15,7 +15,12 @@ fn with_table(rule: &str, name: &str, table: &str) -> Result<RuleFile, String> {
 
 #[test]
 fn members_come_from_csv_with_exact_decimals() {
-    let file = with_table(RULE, "t.csv", "address,balance\n0x3f5a,1520.565494\n\"Zoë, B.\",2\nc,0.000001\n").unwrap();
+    let file = with_table(
+        RULE,
+        "t.csv",
+        "address,balance\n0x3f5a,1520.565494\n\"Zoë, B.\",2\nc,0.000001\n",
+    )
+    .unwrap();
     let names: Vec<&str> = file.members.iter().map(|m| m.name.as_str()).collect();
     assert_eq!(names, ["0x3f5a", "Zoë, B.", "c"]);
     assert_eq!(file.weights, [1_520_565_494, 2_000_000, 1]);
@@ -175,7 +180,8 @@ fn tables_need_a_resolver_and_name_their_files_when_missing() {
 
 #[test]
 fn exact_amounts_too_large_for_the_core_need_a_unit_and_are_rounded_to_it() {
-    let rule = "attribute tokens decimals 18\nmembers h from \"t.csv\" tokens=balance\nrule r = tokens > 1/2\n";
+    let rule =
+        "attribute tokens decimals 18\nmembers h from \"t.csv\" tokens=balance\nrule r = tokens > 1/2\n";
     let table = "name,balance\na,10\nb,9.5\nc,0.25\n";
     let e = with_table(rule, "t.csv", table).unwrap_err();
     assert!(

@@ -159,8 +159,17 @@ pub fn certify_by(file: &RuleFile, rule: &CompiledRule, penrose: &[f64], how: Co
         let unit = amounts.unit?;
         let a = ec.attribute;
         let (low, high) = error_sums(amounts, r.attribute_weights(a), unit);
-        if !attributes.iter().any(|x: &RoundedAttribute| x.attribute == file.attributes[a]) {
-            attributes.push(describe_attribute(file, amounts, r.attribute_weights(a), r.total(a), unit));
+        if !attributes
+            .iter()
+            .any(|x: &RoundedAttribute| x.attribute == file.attributes[a])
+        {
+            attributes.push(describe_attribute(
+                file,
+                amounts,
+                r.attribute_weights(a),
+                r.total(a),
+                unit,
+            ));
         }
         let q = i128::from(r.atoms()[k].quota);
         let exact_q = i128::try_from(ec.quota).unwrap_or(i128::MAX);
@@ -210,7 +219,8 @@ fn error_sums(amounts: &Amounts, weights: &[u64], unit: u128) -> (i128, i128) {
     let mut high = 0i128;
     for (&x, &w) in amounts.exact.iter().zip(weights) {
         // |e| <= u/2 and x < 2^94: both fit in i128.
-        let e = i128::try_from(x).unwrap_or(i128::MAX) - i128::try_from(unit * u128::from(w)).unwrap_or(i128::MAX);
+        let e = i128::try_from(x).unwrap_or(i128::MAX)
+            - i128::try_from(unit * u128::from(w)).unwrap_or(i128::MAX);
         if e < 0 {
             low += e;
         } else {
@@ -261,7 +271,12 @@ fn merge(mut spans: Vec<Span>) -> Vec<Span> {
 
 /// The coalitions that could be decided differently: (exact count if
 /// known, whether it counts exactly the differing ones, share bound, method).
-fn count(file: &RuleFile, rule: &CompiledRule, spans: &[Span], how: Count) -> (Option<String>, bool, f64, String) {
+fn count(
+    file: &RuleFile,
+    rule: &CompiledRule,
+    spans: &[Span],
+    how: Count,
+) -> (Option<String>, bool, f64, String) {
     let r = &rule.rule;
     let n = r.members();
     if spans.is_empty() {
@@ -321,7 +336,11 @@ fn winning(weights: &[u64], quota: u64) -> Option<u128> {
     }
     let game = Rule::weighted(quota, weights.to_vec()).ok()?;
     let plan = clout_dsl::exact::choose(&game, COUNT_BUDGET).ok()?;
-    clout_dsl::exact::power(&game, plan.engine).ok()?.winning.parse().ok()
+    clout_dsl::exact::power(&game, plan.engine)
+        .ok()?
+        .winning
+        .parse()
+        .ok()
 }
 
 /// A rigorous upper bound on the share of coalitions whose sum of
@@ -396,13 +415,16 @@ pub fn conditions_met(file: &RuleFile, rule: &CompiledRule, groups: [&[usize]; 3
                         return false;
                     };
                     let sum = |g: &[usize]| -> i128 {
-                        g.iter().map(|&i| i128::try_from(amounts.exact[i]).unwrap_or(0)).sum()
+                        g.iter()
+                            .map(|&i| i128::try_from(amounts.exact[i]).unwrap_or(0))
+                            .sum()
                     };
                     let (y, no, ab) = (sum(groups[0]), sum(groups[1]), sum(groups[2]));
                     match (linear, ec.bound) {
                         // Coefficients below 2^31 times sums below 2^94: no overflow.
                         (Some(l), Some(bound)) => {
-                            i128::from(l.yes) * y + i128::from(l.no) * no + i128::from(l.abstain) * ab >= bound
+                            i128::from(l.yes) * y + i128::from(l.no) * no + i128::from(l.abstain) * ab
+                                >= bound
                         }
                         _ => y >= i128::try_from(ec.quota).unwrap_or(i128::MAX),
                     }

@@ -229,9 +229,9 @@ impl RuleFile {
                 last += 1;
             }
             let name = |i: usize| {
-                self.members
-                    .get(i)
-                    .map_or(std::borrow::Cow::Borrowed("?"), |m| crate::quote::written(&m.name))
+                self.members.get(i).map_or(std::borrow::Cow::Borrowed("?"), |m| {
+                    crate::quote::written(&m.name)
+                })
             };
             match last - k {
                 0 => out.push(name(first).into_owned()),

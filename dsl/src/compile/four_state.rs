@@ -62,7 +62,8 @@ impl Resolver<'_, '_> {
                     },
                 ) => share_of_total(left, numerator, denominator, total, cmp),
                 (None, AmountValue::Integer(k)) => {
-                    let k = i128::from(k).checked_mul(i128::try_from(crate::amount::pow10(decimals)).ok()?)?;
+                    let k =
+                        i128::from(k).checked_mul(i128::try_from(crate::amount::pow10(decimals)).ok()?)?;
                     smallest(orient(left, k, cmp))
                 }
             })
@@ -153,8 +154,11 @@ impl Resolver<'_, '_> {
                     Some(q) => Some((b, q)),
                     None => {
                         self.errors.push(
-                            Diagnostic::error(t.span, format!("`{text}` is too precise for the exact amounts"))
-                                .with_hint("use fewer decimals in the percentage"),
+                            Diagnostic::error(
+                                t.span,
+                                format!("`{text}` is too precise for the exact amounts"),
+                            )
+                            .with_hint("use fewer decimals in the percentage"),
                         );
                         return None;
                     }

@@ -165,7 +165,13 @@ mod testing {
         let Some(File::Declarations(decls)) = parsed.file else {
             panic!("not declarations")
         };
-        let mut d = names::declare(source, &decls, parsed.set_aside, &mut super::NoTables, &mut errors);
+        let mut d = names::declare(
+            source,
+            &decls,
+            parsed.set_aside,
+            &mut super::NoTables,
+            &mut errors,
+        );
         let out = passes(&mut d, &mut errors);
         let shown = errors
             .into_vec()

@@ -23,8 +23,8 @@ use crate::data::{At, Table};
 use crate::diagnostic::{closest, CappedErrors, Diagnostic, LineStarts, Span};
 use crate::quote::written;
 use crate::syntax::{
-    self, AttributeDecl, BlocDecl, Declaration, GroupDecl, MemberDecl, NamedExpr, Quantity, SetAside, TableDecl,
-    MAX_NAME_LEN,
+    self, AttributeDecl, BlocDecl, Declaration, GroupDecl, MemberDecl, NamedExpr, Quantity, SetAside,
+    TableDecl, MAX_NAME_LEN,
 };
 
 /// What a name stands for.
@@ -244,9 +244,12 @@ pub(super) fn declare<'a>(
     if d.names.set_aside.is_empty() {
         let last = syntax::end_of_content(source, source.len());
         let end = Span::new(last, last);
-        let any_member = declarations
-            .iter()
-            .any(|d| matches!(d, Declaration::Member(_) | Declaration::Group(_) | Declaration::Table(_)));
+        let any_member = declarations.iter().any(|d| {
+            matches!(
+                d,
+                Declaration::Member(_) | Declaration::Group(_) | Declaration::Table(_)
+            )
+        });
         if !any_member {
             errors.push(
                 Diagnostic::error(end, "the file declares no members")
@@ -378,8 +381,11 @@ impl<'a> Declared<'a> {
         let (decimals, decimals_span) = decl.decimals;
         if decimals > u64::from(amount::MAX_DECIMALS) {
             errors.push(
-                Diagnostic::error(decimals_span, format!("{decimals} decimals, more than {}", amount::MAX_DECIMALS))
-                    .with_hint(format!("amounts have at most {} decimals", amount::MAX_DECIMALS)),
+                Diagnostic::error(
+                    decimals_span,
+                    format!("{decimals} decimals, more than {}", amount::MAX_DECIMALS),
+                )
+                .with_hint(format!("amounts have at most {} decimals", amount::MAX_DECIMALS)),
             );
             return;
         }
@@ -389,7 +395,8 @@ impl<'a> Declared<'a> {
             Some(q) => match amount::from_quantity(q.mantissa, q.scale, decimals) {
                 Ok(0) => {
                     errors.push(
-                        Diagnostic::error(q.span, "a unit of 0").with_hint("the unit is a positive amount, e.g. `unit 0.001`"),
+                        Diagnostic::error(q.span, "a unit of 0")
+                            .with_hint("the unit is a positive amount, e.g. `unit 0.001`"),
                     );
                     return;
                 }
@@ -452,10 +459,21 @@ impl<'a> Declared<'a> {
                 return Some(c);
             }
             let hint = match closest(&column.text, table.columns.iter().map(String::as_str)) {
-                Some(c) => format!("did you mean `{c}`? (the rule file names `{}` on line {line})", column.text),
-                None => format!("the columns are: {}; the rule file names `{}` on line {line}", table.columns.join(", "), column.text),
+                Some(c) => format!(
+                    "did you mean `{c}`? (the rule file names `{}` on line {line})",
+                    column.text
+                ),
+                None => format!(
+                    "the columns are: {}; the rule file names `{}` on line {line}",
+                    table.columns.join(", "),
+                    column.text
+                ),
             };
-            errors.push(table.error(At::Start, format!("the header has no column `{}`", column.text), hint));
+            errors.push(table.error(
+                At::Start,
+                format!("the header has no column `{}`", column.text),
+                hint,
+            ));
             None
         };
         let name_column = match &decl.name_column {
@@ -470,7 +488,11 @@ impl<'a> Declared<'a> {
             return;
         }
         if table.rows.is_empty() {
-            errors.push(table.error(At::Start, "the table has no rows".to_string(), "a member table lists one member per row, after the header"));
+            errors.push(table.error(
+                At::Start,
+                "the table has no rows".to_string(),
+                "a member table lists one member per row, after the header",
+            ));
             return;
         }
         let mut first_row: HashMap<&str, usize> = HashMap::new();
@@ -479,24 +501,42 @@ impl<'a> Declared<'a> {
                 errors.push(table.error(
                     At::Row(r),
                     format!("more than {MAX_MEMBERS} members"),
-                    format!("a rule holds at most {MAX_MEMBERS} members; this table has {} rows", table.rows.len()),
+                    format!(
+                        "a rule holds at most {MAX_MEMBERS} members; this table has {} rows",
+                        table.rows.len()
+                    ),
                 ));
                 break;
             }
             let name = row[name_column].as_str();
             if name.is_empty() {
-                errors.push(table.error(At::Cell(r, name_column), "a member without a name".to_string(), format!("every row names its member in the column `{}`", table.columns[name_column])));
+                errors.push(table.error(
+                    At::Cell(r, name_column),
+                    "a member without a name".to_string(),
+                    format!(
+                        "every row names its member in the column `{}`",
+                        table.columns[name_column]
+                    ),
+                ));
                 continue;
             }
             if name.len() > MAX_NAME_LEN {
-                errors.push(table.error(At::Cell(r, name_column), format!("a name of {} bytes, over the limit of {MAX_NAME_LEN}", name.len()), "use shorter names; a title can hold the long form"));
+                errors.push(table.error(
+                    At::Cell(r, name_column),
+                    format!("a name of {} bytes, over the limit of {MAX_NAME_LEN}", name.len()),
+                    "use shorter names; a title can hold the long form",
+                ));
                 continue;
             }
             if let Some(&earlier) = first_row.get(name) {
                 errors.push(table.error(
                     At::Cell(r, name_column),
                     format!("duplicate name {}", written(name)),
-                    format!("{} is already on line {} of the table; every member is listed once", written(name), table.line_of(earlier)),
+                    format!(
+                        "{} is already on line {} of the table; every member is listed once",
+                        written(name),
+                        table.line_of(earlier)
+                    ),
                 ));
                 continue;
             }
@@ -507,7 +547,11 @@ impl<'a> Declared<'a> {
                     self.names.word(old),
                     self.names.line(old_span)
                 );
-                errors.push(table.error(At::Cell(r, name_column), format!("duplicate name {}", written(name)), hint));
+                errors.push(table.error(
+                    At::Cell(r, name_column),
+                    format!("duplicate name {}", written(name)),
+                    hint,
+                ));
                 continue;
             }
             first_row.insert(name, r);
@@ -552,7 +596,9 @@ impl<'a> Declared<'a> {
         let mut totals: Vec<Option<u128>> = vec![Some(0); k];
         for weights in &self.member_weights {
             for &(a, w) in weights {
-                totals[a] = totals[a].and_then(|t| t.checked_add(w)).filter(|&t| t <= amount::MAX_EXACT_TOTAL);
+                totals[a] = totals[a]
+                    .and_then(|t| t.checked_add(w))
+                    .filter(|&t| t <= amount::MAX_EXACT_TOTAL);
             }
         }
         for a in 0..k {
@@ -569,7 +615,12 @@ impl<'a> Declared<'a> {
             if total <= u128::from(MAX_TOTAL) {
                 continue;
             }
-            let Some(AmountSpec { decimals, unit: Some(unit), .. }) = spec else {
+            let Some(AmountSpec {
+                decimals,
+                unit: Some(unit),
+                ..
+            }) = spec
+            else {
                 let hint = match spec {
                     Some(s) => format!(
                         "declare a unit the weights are counted in, e.g. `attribute {name} decimals {} unit {}`; the report then certifies the rounding",
@@ -579,8 +630,11 @@ impl<'a> Declared<'a> {
                     None => "express the weights in a coarser unit".to_string(),
                 };
                 errors.push(
-                    Diagnostic::error(at, format!("the weights of `{name}` add up to more than 2^64 - 4"))
-                        .with_hint(hint),
+                    Diagnostic::error(
+                        at,
+                        format!("the weights of `{name}` add up to more than 2^64 - 4"),
+                    )
+                    .with_hint(hint),
                 );
                 continue;
             };
@@ -760,7 +814,13 @@ mod tests {
         let Some(File::Declarations(decls)) = parsed.file else {
             panic!()
         };
-        declare(&source, &decls, parsed.set_aside, &mut super::super::NoTables, &mut errors);
+        declare(
+            &source,
+            &decls,
+            parsed.set_aside,
+            &mut super::super::NoTables,
+            &mut errors,
+        );
         assert_eq!(errors.total(), 299);
         let shown = errors.into_vec();
         assert!(shown

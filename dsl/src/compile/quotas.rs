@@ -531,7 +531,17 @@ impl Resolver<'_, '_> {
             };
             let q = u64::try_from(exact).unwrap_or(u64::MAX);
             return self
-                .check(key, t.span, text, if exact == 0 { 0 } else { q.max(subject.total.saturating_add(1)) }, &subject)
+                .check(
+                    key,
+                    t.span,
+                    text,
+                    if exact == 0 {
+                        0
+                    } else {
+                        q.max(subject.total.saturating_add(1))
+                    },
+                    &subject,
+                )
                 .then_some(Resolved::Atom {
                     key,
                     quota: 0,

@@ -156,7 +156,12 @@ impl Builder {
         let path = inner
             .next()
             .map(|s| {
-                let text = s.clone().into_inner().next().map_or("", |t| t.as_str()).to_string();
+                let text = s
+                    .clone()
+                    .into_inner()
+                    .next()
+                    .map_or("", |t| t.as_str())
+                    .to_string();
                 (text, self.span_of(&s))
             })
             .unwrap_or_default();

@@ -118,7 +118,19 @@ pub(super) fn position(e: &pest::error::Error<G>) -> usize {
 }
 
 const KEYWORDS: [&str; 13] = [
-    "title", "member", "members", "attribute", "bloc", "define", "rule", "count", "against", "of", "and", "or", "not",
+    "title",
+    "member",
+    "members",
+    "attribute",
+    "bloc",
+    "define",
+    "rule",
+    "count",
+    "against",
+    "of",
+    "and",
+    "or",
+    "not",
 ];
 
 /// The end of the last token before `at` (skipping white space and

@@ -538,7 +538,8 @@ mod tests {
 
     #[test]
     fn numbers_set_their_declaration_aside() {
-        let src = "member a seats=9999999999999999999999999999999999999999\nmembers g x2\nrule r = a and g1\n";
+        let src =
+            "member a seats=9999999999999999999999999999999999999999\nmembers g x2\nrule r = a and g1\n";
         let mut errors = CappedErrors::new();
         let parsed = parse_recovering(src, &mut errors);
         assert_eq!(errors.total(), 1);

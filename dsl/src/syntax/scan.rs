@@ -20,8 +20,15 @@ pub const MAX_NESTING: usize = 64;
 
 /// The words that start a declaration, longest first where one is a prefix
 /// of another.
-pub(super) const DECLARATION_KEYWORDS: [&str; 7] =
-    ["title", "members", "member", "attribute", "bloc", "define", "rule"];
+pub(super) const DECLARATION_KEYWORDS: [&str; 7] = [
+    "title",
+    "members",
+    "member",
+    "attribute",
+    "bloc",
+    "define",
+    "rule",
+];
 
 /// One stretch of the source: the text before the first declaration
 /// keyword, or one declaration keyword up to the next.
