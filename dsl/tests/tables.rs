@@ -140,10 +140,10 @@ fn bom_crlf_and_quoted_fields_are_read_correctly() {
     // The names print in a form that compiles back.
     let rule = format!(
         "member {} tokens=1\nmember {} tokens=2\nrule r = {} and {}\n",
-        clout_dsl::quote::written(&names[0]),
-        clout_dsl::quote::written(&names[1]),
-        clout_dsl::quote::written(&names[0]),
-        clout_dsl::quote::written(&names[1])
+        clout_dsl::quote::written(names[0]),
+        clout_dsl::quote::written(names[1]),
+        clout_dsl::quote::written(names[0]),
+        clout_dsl::quote::written(names[1])
     );
     let again = clout_dsl::compile(&rule).unwrap();
     assert_eq!(again.members[1].name, "say \"hi\"");

@@ -177,7 +177,7 @@ pub fn certify_by(file: &RuleFile, rule: &CompiledRule, penrose: &[f64], how: Co
         let hi = clout_dsl::amount::ceil_div(exact_q - low, unit) - 1;
         let from = lo.min(q).max(0);
         let to = hi.max(q - 1).min(i128::from(r.total(a)));
-        let span = (from <= to).then(|| Span {
+        let span = (from <= to).then_some(Span {
             attribute: a,
             from: from as u64,
             to: to as u64,

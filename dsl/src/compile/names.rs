@@ -601,11 +601,11 @@ impl<'a> Declared<'a> {
                     .filter(|&t| t <= amount::MAX_EXACT_TOTAL);
             }
         }
-        for a in 0..k {
+        for (a, total) in totals.into_iter().enumerate() {
             let (name, span) = &self.attributes[a];
             let spec = self.amounts[a];
             let at = spec.map_or(*span, |s| s.span);
-            let Some(total) = totals[a] else {
+            let Some(total) = total else {
                 errors.push(
                     Diagnostic::error(at, format!("the amounts of `{name}` add up to more than 2^94 - 1 base units"))
                         .with_hint("exact amounts total at most 2^94 - 1 base units; declare fewer decimals if the data allows"),
