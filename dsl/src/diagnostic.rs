@@ -179,51 +179,24 @@ impl Diagnostic {
         if let Some(place) = &self.place {
             return self.render_placed(place);
         }
-        let (line, col) = lines.line_col(source, self.span.start);
-        let mut out = format!(
-            "{file}:{line}:{col}: {}: {}\n",
-            self.severity.label(),
-            printable(&self.message)
-        );
+        let (line, column) = lines.line_col(source, self.span.start);
         let start = floor_char_boundary(source, self.span.start);
         let line_start = source[..start].rfind('\n').map_or(0, |i| i + 1);
         let line_end = source[start..].find('\n').map_or(source.len(), |i| start + i);
-        let text: Vec<char> = source[line_start..line_end]
-            .trim_end_matches('\r')
-            .chars()
-            .map(|c| if c == '\t' { ' ' } else { shown(c) })
-            .collect();
         let end = floor_char_boundary(source, self.span.end.clamp(start, line_end));
-        let width = source[start..end].chars().count().max(1);
-        // Window: from a little before the span, at most LINE_WINDOW characters.
-        let first = if text.len() > LINE_WINDOW {
-            (col - 1).saturating_sub(LINE_WINDOW / 4)
-        } else {
-            0
+        let place = Place {
+            file: file.to_string(),
+            line,
+            column,
+            text: source[line_start..line_end].trim_end_matches('\r').to_string(),
+            width: source[start..end].chars().count().max(1),
         };
-        let last = (first + LINE_WINDOW).min(text.len());
-        let before = if first > 0 { "..." } else { "" };
-        let after = if last < text.len() { "..." } else { "" };
-        let window: String = text[first.min(last)..last].iter().collect();
-        let width = width.min(LINE_WINDOW.saturating_sub(col - 1 - first).max(1));
-        let gutter = line.to_string().len().max(4);
-        let _ = writeln!(out, "{line:>gutter$} | {before}{window}{after}");
-        let _ = writeln!(
-            out,
-            "{:gutter$} | {}{}",
-            "",
-            " ".repeat(col - 1 - first + before.len()),
-            "^".repeat(width)
-        );
-        if let Some(hint) = &self.hint {
-            let _ = writeln!(out, "{:gutter$} = hint: {}", "", printable(hint));
-        }
-        out
+        self.render_placed(&place)
     }
 }
 
 impl Diagnostic {
-    /// A diagnostic placed in a data table, rendered like one in rule text.
+    /// The rendering of [`Self::render`] at a place: a line of rule text or of a data table.
     fn render_placed(&self, place: &Place) -> String {
         let Place {
             file,

@@ -19,7 +19,7 @@
 use std::borrow::Cow;
 
 /// Words that are never plain names (the language's keywords).
-const KEYWORDS: [&str; 13] = [
+pub(crate) const KEYWORDS: [&str; 13] = [
     "title",
     "members",
     "member",

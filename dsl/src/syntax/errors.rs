@@ -117,21 +117,7 @@ pub(super) fn position(e: &pest::error::Error<G>) -> usize {
     }
 }
 
-const KEYWORDS: [&str; 13] = [
-    "title",
-    "member",
-    "members",
-    "attribute",
-    "bloc",
-    "define",
-    "rule",
-    "count",
-    "against",
-    "of",
-    "and",
-    "or",
-    "not",
-];
+use crate::quote::KEYWORDS;
 
 /// The end of the last token before `at` (skipping white space and
 /// comments), found by walking back line by line from `at`.
