@@ -16,6 +16,7 @@ use clout_dsl::{CompiledRule, RuleFile};
 use serde::Serialize;
 
 use crate::failure::Failure;
+use crate::report::rounding;
 
 /// Ballots hold up to 65,536 members, the language's limit.
 type Votes = Ballot<1024>;
@@ -40,7 +41,8 @@ pub struct NamedBallot {
     pub no: Vec<String>,
     /// Members present but abstaining.
     pub abstain: Vec<String>,
-    /// Everyone else (default: absent, or no when only `yes` is given).
+    /// Everyone else (default: absent, or no when only `yes` is given:
+    /// a two-state ballot).
     pub rest: Option<Rest>,
 }
 
@@ -93,12 +95,17 @@ pub struct Tally {
     pub four_state: bool,
     /// Whether it is met.
     pub met: bool,
+    /// `sum - needed`: how far the yes-sum is above (or, negative, below)
+    /// what the condition needs; null when yes votes do not enter.
+    pub margin: Option<String>,
 }
 
 /// One vote per member from a ballot given by names. Lists are applied in
-/// the order yes, abstain, no (a later list overrides an earlier one).
+/// the order yes, no, abstain (a later list overrides an earlier one, so
+/// `yes: all, no: harbor` works). Members not named vote as `rest` says;
+/// by default they are absent, or vote no when only `yes` lists anyone.
 pub fn votes(file: &RuleFile, ballot: &NamedBallot) -> Result<Vec<Vote>, Failure> {
-    let only_yes = ballot.no.is_empty() && ballot.abstain.is_empty();
+    let only_yes = !ballot.yes.is_empty() && ballot.no.is_empty() && ballot.abstain.is_empty();
     let rest = match ballot.rest {
         Some(Rest::No) => Vote::No,
         Some(Rest::Abstain) => Vote::Abstain,
@@ -109,8 +116,8 @@ pub fn votes(file: &RuleFile, ballot: &NamedBallot) -> Result<Vec<Vote>, Failure
     let mut votes = vec![rest; file.members.len()];
     for (list, vote, option) in [
         (&ballot.yes, Vote::Yes, "yes"),
-        (&ballot.abstain, Vote::Abstain, "abstain"),
         (&ballot.no, Vote::No, "no"),
+        (&ballot.abstain, Vote::Abstain, "abstain"),
     ] {
         for name in list {
             for i in named(file, name, option)? {
@@ -144,8 +151,21 @@ fn named(file: &RuleFile, name: &str, list: &str) -> Result<Vec<usize>, Failure>
 /// Decides one vote (one [`Vote`] per member) under `rule`.
 pub fn decide(file: &RuleFile, rule: &CompiledRule, votes: &[Vote]) -> Result<Decision, Failure> {
     let ballot = Votes::from_votes(votes).map_err(|e| Failure::input(e.to_string()))?;
-    let decision = decide_ballot(&rule.rule, &ballot).map_err(|e| Failure::input(e.to_string()))?;
-    let flips = critical(&rule.rule, votes, decision.passed);
+    let mut decision = decide_ballot(&rule.rule, &ballot).map_err(|e| Failure::input(e.to_string()))?;
+    let pick = |want: Vote| -> Vec<usize> { (0..votes.len()).filter(|&i| votes[i] == want).collect() };
+    let groups = [pick(Vote::Yes), pick(Vote::No), pick(Vote::Abstain)];
+    let rounded = rule.exact.iter().any(Option::is_some);
+    let flips = if rounded {
+        // Weights rounded to a unit: decide on the exact amounts instead.
+        let met = rounding::conditions_met(file, rule, [&groups[0], &groups[1], &groups[2]]);
+        for (t, m) in decision.tallies.iter_mut().zip(&met) {
+            t.met = *m;
+        }
+        decision.passed = rule.rule.eval(|k| met[k]);
+        exact_critical(file, rule, votes, decision.passed)
+    } else {
+        critical(&rule.rule, votes, decision.passed)
+    };
     let conditions = rule
         .conditions
         .iter()
@@ -160,19 +180,14 @@ pub fn decide(file: &RuleFile, rule: &CompiledRule, votes: &[Vote]) -> Result<De
             abstain: t.abstain.to_string(),
             quota: t.quota.to_string(),
             needed: needed_yes(&rule.rule, i, t).map(|n| n.to_string()),
+            margin: needed_yes(&rule.rule, i, t).map(|n| (i128::from(t.sum) - n).to_string()),
             total: rule.rule.total(usize::from(atom.attribute)).to_string(),
             four_state: rule.rule.linear(i).is_some(),
             met: t.met,
         })
         .collect();
-    let pick = |want: Vote| -> Vec<usize> { (0..votes.len()).filter(|&i| votes[i] == want).collect() };
-    let indices = [
-        pick(Vote::Yes),
-        pick(Vote::No),
-        pick(Vote::Abstain),
-        pick(Vote::Absent),
-        flips,
-    ];
+    let [yes, no, abstain] = groups;
+    let indices = [yes, no, abstain, pick(Vote::Absent), flips];
     let names =
         |ids: &[usize]| -> Vec<String> { ids.iter().map(|&i| file.members[i].name.clone()).collect() };
     Ok(Decision {
@@ -204,6 +219,33 @@ fn needed_yes(rule: &Rule<Vec<u64>>, i: usize, t: &AtomTally) -> Option<i128> {
         }
         Some(_) => None,
     }
+}
+
+/// [`critical`] on the exact amounts of rounded attributes: each switch is
+/// decided again exactly. O(members^2 * conditions).
+fn exact_critical(file: &RuleFile, rule: &CompiledRule, votes: &[Vote], passed: bool) -> Vec<usize> {
+    let mut out = Vec::new();
+    let mut switched = votes.to_vec();
+    for (i, &v) in votes.iter().enumerate() {
+        let to = match (passed, v) {
+            (true, Vote::Yes) => Vote::No,
+            (false, Vote::No | Vote::Abstain | Vote::Absent) => Vote::Yes,
+            _ => continue,
+        };
+        switched[i] = to;
+        let pick =
+            |want: Vote| -> Vec<usize> { (0..switched.len()).filter(|&j| switched[j] == want).collect() };
+        let met = rounding::conditions_met(
+            file,
+            rule,
+            [&pick(Vote::Yes), &pick(Vote::No), &pick(Vote::Abstain)],
+        );
+        if rule.rule.eval(|k| met[k]) != passed {
+            out.push(i);
+        }
+        switched[i] = v;
+    }
+    out
 }
 
 /// Members whose own switch flips the outcome: when it passes, yes-voters

@@ -8,7 +8,7 @@
 //!   engines, indices;
 //! * the rule language ([`language`], with [`compile`] at the root);
 //! * [`report`]: the power report as data (the JSON schema of every front end);
-//! * [`decision`]: one actual vote as data;
+//! * [`decision`]: one actual vote as data; [`record`]: many recorded votes;
 //! * [`drafting`]: the drafter's answers as data (simplify, compare, sweep,
 //!   coalitions, order, fit), the JSON schema of the drafting commands;
 //! * [`toolkit`]: the drafter's methods behind them;
@@ -27,6 +27,7 @@ pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 pub mod decision;
 pub mod drafting;
 mod failure;
+pub mod record;
 pub mod report;
 pub mod scenarios;
 pub mod toolkit;

@@ -215,3 +215,57 @@ fn memory_limit_steers_the_planner() {
         Err(Error::MemoryLimit { .. })
     ));
 }
+
+/// The README's promise for `decide` (and the Python `decide`): lists apply
+/// in the order yes, no, abstain, a later list overriding an earlier one;
+/// members not named are absent, or vote no when only yes-voters are named.
+#[test]
+fn decide_defaults_are_as_documented() {
+    use clout::decision::{votes, NamedBallot, Rest};
+    use clout::Vote::{Absent, Abstain, No, Yes};
+    let file = clout::compile(
+        "member harbor seats=9\nmember mill seats=7\nmember ferry seats=1\nrule r = seats > 1/2\n",
+    )
+    .unwrap();
+    let list = |v: &[&str]| v.iter().map(|s| s.to_string()).collect::<Vec<_>>();
+    let ballot = |yes: &[&str], no: &[&str], abstain: &[&str], rest| NamedBallot {
+        yes: list(yes),
+        no: list(no),
+        abstain: list(abstain),
+        rest,
+    };
+    // No list at all: everyone absent.
+    assert_eq!(votes(&file, &ballot(&[], &[], &[], None)).unwrap(), [Absent; 3]);
+    // Only --yes: a two-state ballot, the others vote no.
+    assert_eq!(
+        votes(&file, &ballot(&["harbor"], &[], &[], None)).unwrap(),
+        [Yes, No, No]
+    );
+    // Any other list: the others are absent.
+    assert_eq!(
+        votes(&file, &ballot(&["harbor"], &["mill"], &[], None)).unwrap(),
+        [Yes, No, Absent]
+    );
+    assert_eq!(
+        votes(&file, &ballot(&[], &[], &["ferry"], None)).unwrap(),
+        [Absent, Absent, Abstain]
+    );
+    // Order yes, no, abstain: `--yes all --no harbor` and `--no all --abstain mill`.
+    assert_eq!(
+        votes(&file, &ballot(&["all"], &["harbor"], &[], None)).unwrap(),
+        [No, Yes, Yes]
+    );
+    assert_eq!(
+        votes(&file, &ballot(&["all"], &["harbor", "mill"], &["mill"], None)).unwrap(),
+        [No, Abstain, Yes]
+    );
+    // --rest overrides the default.
+    assert_eq!(
+        votes(&file, &ballot(&["harbor"], &[], &[], Some(Rest::Absent))).unwrap(),
+        [Yes, Absent, Absent]
+    );
+    assert_eq!(
+        votes(&file, &ballot(&[], &[], &[], Some(Rest::Abstain))).unwrap(),
+        [Abstain; 3]
+    );
+}

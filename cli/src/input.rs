@@ -1,11 +1,12 @@
 //! Where a rule comes from: a file, `--game "[q; w...]"`, or the embedded
 //! demo; compiled, with errors rendered against their source.
 
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
+use clout_dsl::data::MAX_TABLE_LEN;
 use clout_dsl::diagnostic::closest;
 use clout_dsl::syntax::{decode, MAX_SOURCE_LEN};
-use clout_dsl::{compile, render_all, CompiledRule, RuleFile};
+use clout_dsl::{compile_with, render_all, CompiledRule, RuleFile};
 
 use crate::Failure;
 
@@ -29,29 +30,60 @@ impl Input {
     pub fn load(file: Option<&Path>, game: Option<&str>, demo_allowed: bool) -> Result<Input, Failure> {
         match (file, game) {
             (Some(path), _) if path.as_os_str() == "-" => {
-                let bytes = read_bounded(std::io::stdin()).map_err(|e| {
+                let bytes = read_bounded(std::io::stdin(), MAX_SOURCE_LEN).map_err(|e| {
                     Failure::input(format!("cannot read standard input: {}", describe_io(&e)))
                 })?;
-                Input::compile("<stdin>".to_string(), text(bytes, "<stdin>")?, false)
+                Input::compile("<stdin>".to_string(), text(bytes, "<stdin>")?, false, None)
             }
             (Some(path), _) => {
-                let bytes = std::fs::File::open(path).and_then(read_bounded).map_err(|e| {
-                    Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e)))
-                })?;
+                let bytes = std::fs::File::open(path)
+                    .and_then(|f| read_bounded(f, MAX_SOURCE_LEN))
+                    .map_err(|e| {
+                        Failure::input(format!("cannot read `{}`: {}", path.display(), describe_io(&e)))
+                    })?;
                 let name = path.display().to_string();
                 let source = text(bytes, &name)?;
-                Input::compile(name, source, false)
+                let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
+                Input::compile(name, source, false, Some(base))
             }
-            (None, Some(game)) => Input::compile("--game".to_string(), game.to_string(), false),
-            (None, None) if demo_allowed => Input::compile("demo".to_string(), DEMO.to_string(), true),
+            (None, Some(game)) => Input::compile("--game".to_string(), game.to_string(), false, None),
+            (None, None) if demo_allowed => Input::compile("demo".to_string(), DEMO.to_string(), true, None),
             (None, None) => Err(Failure::input(
                 "no rule given: name a rule file, or pass `--game \"[q; w1, ..., wn]\"`".to_string(),
             )),
         }
     }
 
-    fn compile(name: String, source: String, demo: bool) -> Result<Input, Failure> {
-        match compile(&source) {
+    /// Compiles `source`; its tables are read relative to `base` (the rule
+    /// file's folder). Without a base (standard input, `--game`), only
+    /// absolute paths are read: a relative one has no folder to be relative to.
+    fn compile(name: String, source: String, demo: bool, base: Option<PathBuf>) -> Result<Input, Failure> {
+        let mut stdin_used = false;
+        let mut tables = |path: &str| -> Result<(String, Vec<u8>), String> {
+            if path == "-" {
+                if base.is_none() || stdin_used {
+                    return Err("standard input is taken (by the rule file, or by another table)".to_string());
+                }
+                stdin_used = true;
+                let bytes = read_bounded(std::io::stdin(), MAX_TABLE_LEN).map_err(|e| describe_io(&e))?;
+                return Ok(("<stdin>".to_string(), bytes));
+            }
+            let full = match &base {
+                Some(dir) => dir.join(path),
+                None if Path::new(path).is_absolute() => PathBuf::from(path),
+                None => {
+                    return Err(
+                        "a rule read from standard input has no folder for relative paths; save it beside its tables, or name them by absolute paths"
+                            .to_string(),
+                    )
+                }
+            };
+            let bytes = std::fs::File::open(&full)
+                .and_then(|f| read_bounded(f, MAX_TABLE_LEN))
+                .map_err(|e| format!("{} ({})", describe_io(&e), full.display()))?;
+            Ok((full.display().to_string(), bytes))
+        };
+        match compile_with(&source, &mut tables) {
             Ok(file) => Ok(Input {
                 name,
                 source,
@@ -95,11 +127,11 @@ impl Input {
     }
 }
 
-/// Reads at most one byte more than the language accepts, so a huge or
-/// endless input (`/dev/zero`) is refused without reading it all.
-fn read_bounded(reader: impl std::io::Read) -> std::io::Result<Vec<u8>> {
+/// Reads at most one byte more than `limit` (what the language accepts), so
+/// a huge or endless input (`/dev/zero`) is refused without reading it all.
+pub fn read_bounded(reader: impl std::io::Read, limit: usize) -> std::io::Result<Vec<u8>> {
     let mut bytes = Vec::new();
-    std::io::Read::read_to_end(&mut reader.take(MAX_SOURCE_LEN as u64 + 1), &mut bytes)?;
+    std::io::Read::read_to_end(&mut reader.take(limit as u64 + 1), &mut bytes)?;
     Ok(bytes)
 }
 

@@ -149,15 +149,27 @@ fn parse_bytes(s: &str) -> Result<u64, String> {
 struct DecideArgs {
     #[command(flatten)]
     source: Source,
-    /// Members voting yes: names, groups, blocs, ranges such as `rep1..rep218`, or `all`.
-    #[arg(long, value_name = "NAMES", value_delimiter = ',')]
+    /// Members voting yes: names, groups, blocs, ranges such as `rep1..rep218`, or `all`,
+    /// separated by commas (quote a name that holds one: `"Smith, J."`).
+    #[arg(long, value_name = "NAMES")]
     yes: Vec<String>,
     /// Members voting no (same forms; applied after --yes, so `--yes all --no harbor` works).
-    #[arg(long, value_name = "NAMES", value_delimiter = ',')]
+    #[arg(long, value_name = "NAMES")]
     no: Vec<String>,
-    /// Members present but abstaining (same forms).
-    #[arg(long, value_name = "NAMES", value_delimiter = ',')]
+    /// Members present but abstaining (same forms; applied after --no).
+    #[arg(long, value_name = "NAMES")]
     abstain: Vec<String>,
+    /// A record of many votes (CSV or JSON): `motion,<member>,...` with one row per
+    /// motion, or `motion,member,vote`; decides every motion.
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["yes", "no", "abstain", "rest"])]
+    ballots: Option<PathBuf>,
+    /// With --ballots: a second rule (a rule name of the same file, or another rule
+    /// file with the same members) that must decide every recorded motion the same.
+    #[arg(long, value_name = "RULE|FILE", requires = "ballots")]
+    against: Option<String>,
+    /// With --against FILE: which rule of that file (default: its first).
+    #[arg(long, value_name = "NAME", requires = "against")]
+    against_rule: Option<String>,
     /// How everyone not listed votes (default: absent, or no when only --yes is given).
     #[arg(long, value_enum)]
     rest: Option<Rest>,

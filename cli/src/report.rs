@@ -213,8 +213,8 @@ fn text_report(input: &Input, rule: &CompiledRule, report: &Report) -> String {
     if grouped {
         columns.push(("×".to_string(), Align::Right));
     }
-    for a in &file.attributes {
-        columns.push((a.clone(), Align::Right));
+    for a in 0..file.attributes.len() {
+        columns.push((attribute_heading(file, a), Align::Right));
     }
     if !blocs.is_empty() {
         columns.push(("blocs".to_string(), Align::Left));
@@ -384,8 +384,85 @@ or no; an abstention or absence counts as not yes), where each condition reduces
         );
     }
     extras_text(&mut out, input, rule, report);
+    rounding_text(&mut out, report);
     let _ = writeln!(out, "\n{MODEL}\n{CAUTION}");
     out
+}
+
+/// An attribute's column heading: its name, and for amounts with decimals
+/// the unit its whole numbers count (`tokens ×0.000001`).
+fn attribute_heading(file: &clout::RuleFile, a: usize) -> String {
+    let name = &file.attributes[a];
+    match file.amounts.iter().find(|x| x.attribute == a) {
+        Some(x) if x.decimals > 0 || x.unit.is_some() => {
+            format!("{name} ×{}", x.format(x.unit.unwrap_or(1)))
+        }
+        _ => name.clone(),
+    }
+}
+
+/// What rounding exact amounts to a unit can change (`Report::rounding`).
+fn rounding_text(out: &mut String, report: &Report) {
+    let Some(c) = &report.rounding else { return };
+    for a in &c.attributes {
+        let _ = writeln!(
+            out,
+            "\nRounded amounts: `{}` has {} decimals and exact amounts totalling {}, too large for exact counting;\n\
+             its weights count units of {} (each amount rounded to the nearest unit, at most {} off; {} units in all).",
+            a.attribute,
+            a.decimals,
+            a.exact_total,
+            a.unit,
+            a.largest_error,
+            text::thousands(&a.rounded_total)
+        );
+    }
+    for w in &c.windows {
+        let window = match (&w.from, &w.to) {
+            (Some(f), Some(t)) if f == t => format!("a rounded sum of {} units", text::thousands(f)),
+            (Some(f), Some(t)) => format!(
+                "rounded sums {}..{} units",
+                text::thousands(f),
+                text::thousands(t)
+            ),
+            _ => "no rounded sum".to_string(),
+        };
+        let _ = writeln!(
+            out,
+            "  `{}`: exact quota {} {}, quota {} units; {window} could be decided otherwise.",
+            w.condition,
+            w.exact_quota,
+            w.attribute,
+            text::thousands(&w.quota)
+        );
+    }
+    let how_many = match (&c.coalitions, c.coalitions_exact) {
+        (Some(n), true) => format!(
+            "exactly {} coalition{}",
+            text::count(n),
+            if n == "1" { "" } else { "s" }
+        ),
+        (Some(n), false) => format!("at most {} coalitions ({:.2e} of all)", text::count(n), c.share),
+        (None, _) => format!("at most {:.2e} of all coalitions", c.share),
+    };
+    let _ = writeln!(
+        out,
+        "Decided differently by the exact amounts: {how_many}; {}.\n\
+         So each figure is within its rounding bound of the exact amounts' figure: {}penrose ±{:.1e},\n\
+         banzhaf ±{:.1e}, shapley-shubik ±{:.1e}{}.",
+        c.method,
+        c.swings
+            .as_deref()
+            .map_or(String::new(), |s| format!("swings ±{}, ", text::count(s))),
+        c.penrose,
+        c.banzhaf,
+        c.shapley_shubik,
+        if c.shapley_shubik >= 1.0 {
+            " (no useful bound)"
+        } else {
+            ""
+        }
+    );
 }
 
 /// The ternary measure and attendance figures, when asked for.
@@ -429,15 +506,15 @@ fn approximate_text(input: &Input, report: &Report) -> String {
         "Every figure below is an estimate ± its half-width; `--exact` refuses to approximate.\n"
     );
     let mut columns = vec![("member".to_string(), Align::Left)];
-    for name in &file.attributes {
-        columns.push((name.clone(), Align::Right));
+    for a in 0..file.attributes.len() {
+        columns.push((attribute_heading(file, a), Align::Right));
     }
     for h in ["penrose", "banzhaf", "shapley-shubik"] {
         columns.push((h.to_string(), Align::Right));
     }
     let mut table = Table::new(columns);
     for (i, m) in report.members.iter().enumerate() {
-        let mut row = vec![m.name.clone()];
+        let mut row = vec![clout_dsl::quote::written(&m.name).into_owned()];
         for attr in 0..file.attributes.len() {
             row.push(text::thousands(&file.weight(attr, i).to_string()));
         }
@@ -454,6 +531,7 @@ fn approximate_text(input: &Input, report: &Report) -> String {
         "banzhaf           the Penrose measures normalized; the interval covers every combination of theirs"
     );
     let _ = writeln!(out, "shapley-shubik    {}", method(&report.shapley_shubik_method));
+    rounding_text(&mut out, report);
     let _ = writeln!(out, "\n{MODEL}\n{CAUTION}");
     out
 }

@@ -92,6 +92,25 @@ pub struct Diagnostic {
     pub message: String,
     /// What to do about it.
     pub hint: Option<String>,
+    /// For an error in a data table (not in the rule text): the table's
+    /// name and the line and column in it; `span` then means nothing.
+    pub place: Option<Box<Place>>,
+}
+
+/// Where in a data table (CSV or JSON) an error is: the file as named,
+/// 1-based line and column (in characters), and that line's text.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Place {
+    /// The table as shown in messages (its path, or `<stdin>`).
+    pub file: String,
+    /// 1-based line.
+    pub line: usize,
+    /// 1-based column, in characters.
+    pub column: usize,
+    /// The text of the line (without its line end).
+    pub text: String,
+    /// Characters to underline (at least 1).
+    pub width: usize,
 }
 
 impl Diagnostic {
@@ -102,6 +121,7 @@ impl Diagnostic {
             span,
             message: message.into(),
             hint: None,
+            place: None,
         }
     }
 
@@ -127,9 +147,19 @@ impl Diagnostic {
         self
     }
 
-    /// 1-based line and column of the start.
+    /// The same diagnostic, placed in a data table instead of the rule text.
+    pub fn in_table(mut self, place: Place) -> Self {
+        self.place = Some(Box::new(place));
+        self
+    }
+
+    /// 1-based line and column of the start (in the data table, for an
+    /// error placed there).
     pub fn line_col(&self, source: &str) -> (usize, usize) {
-        self.span.line_col(source)
+        match &self.place {
+            Some(p) => (p.line, p.column),
+            None => self.span.line_col(source),
+        }
     }
 
     /// `file:line:col: severity: message`, the source line with carets under
@@ -146,40 +176,65 @@ impl Diagnostic {
 
     /// [`Self::render`] with the line starts of `source` already found.
     fn render_with(&self, file: &str, source: &str, lines: &LineStarts) -> String {
-        let (line, col) = lines.line_col(source, self.span.start);
-        let mut out = format!(
-            "{file}:{line}:{col}: {}: {}\n",
-            self.severity.label(),
-            printable(&self.message)
-        );
+        if let Some(place) = &self.place {
+            return self.render_placed(place);
+        }
+        let (line, column) = lines.line_col(source, self.span.start);
         let start = floor_char_boundary(source, self.span.start);
         let line_start = source[..start].rfind('\n').map_or(0, |i| i + 1);
         let line_end = source[start..].find('\n').map_or(source.len(), |i| start + i);
-        let text: Vec<char> = source[line_start..line_end]
-            .trim_end_matches('\r')
+        let end = floor_char_boundary(source, self.span.end.clamp(start, line_end));
+        let place = Place {
+            file: file.to_string(),
+            line,
+            column,
+            text: source[line_start..line_end].trim_end_matches('\r').to_string(),
+            width: source[start..end].chars().count().max(1),
+        };
+        self.render_placed(&place)
+    }
+}
+
+impl Diagnostic {
+    /// The rendering of [`Self::render`] at a place: a line of rule text or of a data table.
+    fn render_placed(&self, place: &Place) -> String {
+        let Place {
+            file,
+            line,
+            column,
+            text,
+            width,
+        } = place;
+        let mut out = format!(
+            "{}:{line}:{column}: {}: {}\n",
+            printable(file),
+            self.severity.label(),
+            printable(&self.message)
+        );
+        let chars: Vec<char> = text
             .chars()
             .map(|c| if c == '\t' { ' ' } else { shown(c) })
             .collect();
-        let end = floor_char_boundary(source, self.span.end.clamp(start, line_end));
-        let width = source[start..end].chars().count().max(1);
-        // Window: from a little before the span, at most LINE_WINDOW characters.
-        let first = if text.len() > LINE_WINDOW {
-            (col - 1).saturating_sub(LINE_WINDOW / 4)
+        let col = column.saturating_sub(1).min(chars.len());
+        let first = if chars.len() > LINE_WINDOW {
+            col.saturating_sub(LINE_WINDOW / 4)
         } else {
             0
         };
-        let last = (first + LINE_WINDOW).min(text.len());
+        let last = (first + LINE_WINDOW).min(chars.len());
         let before = if first > 0 { "..." } else { "" };
-        let after = if last < text.len() { "..." } else { "" };
-        let window: String = text[first.min(last)..last].iter().collect();
-        let width = width.min(LINE_WINDOW.saturating_sub(col - 1 - first).max(1));
+        let after = if last < chars.len() { "..." } else { "" };
+        let window: String = chars[first.min(last)..last].iter().collect();
+        let width = (*width)
+            .max(1)
+            .min(LINE_WINDOW.saturating_sub(col - first).max(1));
         let gutter = line.to_string().len().max(4);
         let _ = writeln!(out, "{line:>gutter$} | {before}{window}{after}");
         let _ = writeln!(
             out,
             "{:gutter$} | {}{}",
             "",
-            " ".repeat(col - 1 - first + before.len()),
+            " ".repeat(col - first + before.len()),
             "^".repeat(width)
         );
         if let Some(hint) = &self.hint {
@@ -315,7 +370,7 @@ impl LineStarts {
 /// A character as it may be shown on a terminal: control characters and
 /// bidirectional formatting characters (which can reorder or hide text)
 /// become U+FFFD.
-fn shown(c: char) -> char {
+pub(crate) fn shown(c: char) -> char {
     let bidi =
         matches!(c, '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{200e}' | '\u{200f}' | '\u{061c}');
     if (c.is_control() && c != '\n') || bidi {

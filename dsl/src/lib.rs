@@ -36,16 +36,20 @@
 #![deny(unsafe_code)]
 #![warn(missing_docs)]
 
+pub mod amount;
 pub mod compile;
+pub mod data;
 pub mod diagnostic;
 pub mod exact;
 pub mod lint;
 pub mod print;
+pub mod quote;
 pub mod syntax;
 
 pub use compile::{
-    compile, Attribute, AttributeKind, Bloc, CompiledRule, Condition, Group, Member, RuleFile,
+    compile, compile_with, Amounts, Attribute, AttributeKind, Bloc, CompiledRule, Condition, ExactCondition,
+    Group, Member, NoTables, RuleFile, Tables,
 };
-pub use diagnostic::{error_count, render_all, Diagnostic, Severity, Span};
+pub use diagnostic::{error_count, render_all, Diagnostic, Place, Severity, Span};
 pub use lint::lint;
 pub use print::print_rule;

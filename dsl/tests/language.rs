@@ -281,7 +281,7 @@ const BAD: &[(&str, usize, usize, &str)] = &[
         "member a seats=9\nmembrer b seats=1\nrule r = a",
         2,
         1,
-        "expected a weight such as `seats=3` or a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`), found `membrer`",
+        "expected a weight such as `seats=3` or a declaration (`title`, `member`, `members`, `attribute`, `bloc`, `define` or `rule`), found `membrer`",
     ),
     ("member count", 1, 8, "expected a name, found `count`"),
     (
@@ -610,7 +610,7 @@ rule motion = seats > 1/2 and 3 of all
     assert_eq!(
         text,
         "coop.clout:2:1: error: expected a weight such as `seats=3` or a declaration \
-         (`title`, `member`, `members`, `bloc`, `define` or `rule`), found `membrs`\n\
+         (`title`, `member`, `members`, `attribute`, `bloc`, `define` or `rule`), found `membrs`\n\
          \x20  2 | membrs tenant x5 seats=1\n\
          \x20    | ^^^^^^\n\
          \x20    = hint: did you mean `members`?\n"
@@ -647,11 +647,11 @@ rule charter = founders and lease_quorum
     assert_eq!(
         text,
         "coop.clout:3:14: error: expected a weight such as `seats=3` or a declaration \
-         (`title`, `member`, `members`, `bloc`, `define` or `rule`), found `seats`\n\
+         (`title`, `member`, `members`, `attribute`, `bloc`, `define` or `rule`), found `seats`\n\
          \x20  3 | member south seats 3 units=80\n\
          \x20    |              ^^^^^\n\
          \x20    = hint: every declaration starts with one of the keywords `title`, `member`, \
-         `members`, `bloc`, `define`, `rule`\n\
+         `members`, `attribute`, `bloc`, `define`, `rule`\n\
          coop.clout:9:32: error: expected a condition, found `and`\n\
          \x20  9 | rule budget = seats >= 2/3 and and count > 1/2\n\
          \x20    |                                ^^^\n\
@@ -660,8 +660,8 @@ rule charter = founders and lease_quorum
          coop.clout:20:24: error: expected a name, found `,`\n\
          \x20 20 | bloc founders = north, , west\n\
          \x20    |                        ^\n\
-         \x20    = hint: names start with a letter or `_`; keywords such as `count`, `of` and `rule` \
-         cannot be names\n"
+         \x20    = hint: names start with a letter or `_`, or are written in double quotes (`\"0x3f5a\"`); \
+         keywords such as `count`, `of` and `rule` are quoted to be names\n"
     );
 }
 

@@ -18,6 +18,7 @@
 
 mod approx;
 mod extras;
+pub mod rounding;
 
 use clout_dsl::exact::{self, Power};
 use clout_dsl::{CompiledRule, RuleFile};
@@ -137,6 +138,9 @@ pub struct Report {
     /// Passage when members attend by chance (`--attendance`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub attendance: Option<AttendanceReport>,
+    /// What rounding exact amounts to a unit can change (null when no
+    /// condition is on rounded weights).
+    pub rounding: Option<rounding::Rounding>,
     /// The voting model of every figure.
     pub model: String,
     /// The legal caution.
@@ -427,9 +431,12 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
         shapley_shubik_method: None,
         confidence: None,
         attendance,
+        rounding: None,
         model: MODEL.to_string(),
         caution: CAUTION.to_string(),
     };
+    let penrose: Vec<f64> = report.members.iter().map(|m| m.penrose).collect();
+    report.rounding = rounding::certify(file, rule, &penrose);
     match figures {
         Figures::Exact(p) => {
             report.winning_coalitions = Some(p.winning.clone());

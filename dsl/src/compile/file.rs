@@ -26,6 +26,61 @@ pub struct RuleFile {
     pub weights: Vec<u64>,
     /// Rules in declaration order; the first is the default.
     pub rules: Vec<CompiledRule>,
+    /// The attributes declared with decimals (`attribute NAME decimals D`):
+    /// their exact amounts, and the unit when the weights are rounded.
+    pub amounts: Vec<Amounts>,
+}
+
+/// The exact amounts of one attribute declared with decimals.
+///
+/// The weights the core counts (`RuleFile::weights`) are the exact base
+/// units when their total fits the core (2^64 - 4); otherwise each is the
+/// amount rounded to the nearest `unit` (halves up), and the report
+/// certifies what that rounding can change.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Amounts {
+    /// The declared attribute (an index into `RuleFile::attributes`).
+    pub attribute: usize,
+    /// Decimals: an amount is a whole number of 10^-decimals base units.
+    pub decimals: u32,
+    /// Base units per weight unit, when the weights are rounded.
+    pub unit: Option<u128>,
+    /// Every member's exact amount, in base units.
+    pub exact: Vec<u128>,
+    /// Their sum.
+    pub total: u128,
+}
+
+impl Amounts {
+    /// `base` base units written as a decimal amount (`1520.565494`).
+    pub fn format(&self, base: u128) -> String {
+        let d = self.decimals as usize;
+        let digits = base.to_string();
+        if d == 0 {
+            return digits;
+        }
+        let padded = format!("{digits:0>width$}", width = d + 1);
+        let (whole, fraction) = padded.split_at(padded.len() - d);
+        let fraction = fraction.trim_end_matches('0');
+        if fraction.is_empty() {
+            whole.to_string()
+        } else {
+            format!("{whole}.{fraction}")
+        }
+    }
+}
+
+/// A condition on an attribute whose weights are rounded, on the exact amounts.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ExactCondition {
+    /// The declared attribute.
+    pub attribute: usize,
+    /// The least exact yes-sum (base units) that meets the condition when
+    /// everyone votes yes or no: the exact counterpart of the atom's quota.
+    pub quota: u128,
+    /// For a four-state condition, its bound over the exact sums (the
+    /// coefficients are those of the rounded form, `Rule::linear`).
+    pub bound: Option<i128>,
 }
 
 /// One member.
@@ -78,6 +133,9 @@ pub struct CompiledRule {
     pub attributes: Vec<Attribute>,
     /// One entry per atom of [`Self::rule`].
     pub conditions: Vec<Condition>,
+    /// One entry per atom: the condition on the exact amounts, for atoms on
+    /// an attribute whose weights are rounded (`None` for the others).
+    pub exact: Vec<Option<ExactCondition>>,
 }
 
 /// What an attribute of a compiled rule stands for.
@@ -153,8 +211,9 @@ impl RuleFile {
             .chain(self.blocs.iter().map(|b| b.name.as_str()))
     }
 
-    /// Names of `members` (ascending indices), with runs of one group's
-    /// members written `NAMEi..NAMEj`.
+    /// Names of `members` (ascending indices) as written in rule text
+    /// (quoted when not plain), with runs of one group's members written
+    /// `NAMEi..NAMEj`.
     pub fn describe_members(&self, members: &[usize]) -> Vec<String> {
         let mut out = Vec::new();
         let mut k = 0;
@@ -169,12 +228,16 @@ impl RuleFile {
             {
                 last += 1;
             }
-            let name = |i: usize| self.members.get(i).map_or("?", |m| m.name.as_str());
+            let name = |i: usize| {
+                self.members.get(i).map_or(std::borrow::Cow::Borrowed("?"), |m| {
+                    crate::quote::written(&m.name)
+                })
+            };
             match last - k {
-                0 => out.push(name(first).to_string()),
+                0 => out.push(name(first).into_owned()),
                 1 => {
-                    out.push(name(first).to_string());
-                    out.push(name(members[last]).to_string());
+                    out.push(name(first).into_owned());
+                    out.push(name(members[last]).into_owned());
                 }
                 _ => out.push(format!("{}..{}", name(first), name(members[last]))),
             }

@@ -18,6 +18,7 @@ impl Resolver<'_, '_> {
     /// The linear form of a four-state condition on attribute `key` (whose
     /// total is `total`), or an explained refusal.
     pub(super) fn four_state(&mut self, t: &Threshold, key: Key, total: u64, text: &str) -> Option<Resolved> {
+        let (decimals, scale) = self.amount_scale(key);
         let (cmp, cmp_span) = t.comparison;
         if let Some(span) = t.against {
             self.errors.push(
@@ -46,17 +47,52 @@ impl Resolver<'_, '_> {
             );
             return None;
         }
-        let (coef, bound) = match (difference, t.amount.value) {
-            (Some((coef, constant)), _) => smallest(orient(coef, constant, cmp)),
-            (
-                None,
-                AmountValue::Share {
-                    numerator,
-                    denominator,
-                    ..
-                },
-            ) => share_of_total(left, numerator, denominator, total, cmp),
-            (None, AmountValue::Integer(k)) => smallest(orient(left, i128::from(k), cmp)),
+        // The form over the weights the core counts, and (for rounded
+        // weights) over the exact amounts: the same coefficients, bounds of
+        // their own.
+        let form = |total: u128| -> Option<([i128; 3], i128)> {
+            Some(match (difference, t.amount.value) {
+                (Some((coef, constant)), _) => smallest(orient(coef, constant, cmp)),
+                (
+                    None,
+                    AmountValue::Share {
+                        numerator,
+                        denominator,
+                        ..
+                    },
+                ) => share_of_total(left, numerator, denominator, total, cmp),
+                (None, AmountValue::Integer(k)) => {
+                    let k =
+                        i128::from(k).checked_mul(i128::try_from(crate::amount::pow10(decimals)).ok()?)?;
+                    smallest(orient(left, k, cmp))
+                }
+            })
+        };
+        let too_large = |this: &mut Self| {
+            this.errors.push(
+                Diagnostic::error(t.amount.span, "the amount is too large")
+                    .with_hint("amounts are at most 2^64 - 2 of the attribute's unit"),
+            );
+        };
+        let exact = match scale {
+            None => None,
+            Some((_, exact_total)) => match form(exact_total) {
+                Some(f) => Some(f),
+                None => {
+                    too_large(self);
+                    return None;
+                }
+            },
+        };
+        let (coef, bound) = match (exact, scale) {
+            (Some((coef, b)), Some((unit, _))) => (coef, crate::amount::ceil_div(b, unit)),
+            _ => match form(u128::from(total)) {
+                Some(f) => f,
+                None => {
+                    too_large(self);
+                    return None;
+                }
+            },
         };
         let coefficients = coef.map(|x| i32::try_from(x).ok());
         let [Some(yes), Some(no), Some(abstain)] = coefficients else {
@@ -112,11 +148,30 @@ impl Resolver<'_, '_> {
                 return None;
             }
         }
+        let exact = match (exact, scale) {
+            (Some((_, b)), Some((_, exact_total))) => {
+                match exact_binary_quota(coefficients, b, exact_total) {
+                    Some(q) => Some((b, q)),
+                    None => {
+                        self.errors.push(
+                            Diagnostic::error(
+                                t.span,
+                                format!("`{text}` is too precise for the exact amounts"),
+                            )
+                            .with_hint("use fewer decimals in the percentage"),
+                        );
+                        return None;
+                    }
+                }
+            }
+            _ => None,
+        };
         Some(Resolved::Linear {
             key,
             coefficients,
             bound,
             span: t.span,
+            exact,
         })
     }
 
@@ -202,21 +257,40 @@ fn gcd(mut a: i128, mut b: i128) -> i128 {
 
 /// `G cmp p/q of T`, G = left . (Y, N, A) with 0/1 coefficients, in the
 /// smallest form: `q G cmp p T` divided by q (the gcd of `q * left`), with
-/// the bound rounded up, exactly: `p T` < 2^128 is taken in `u128`, and the
-/// quotient `p T / q` <= T fits easily.
-fn share_of_total(left: [i128; 3], p: u64, q: u64, total: u64, cmp: Comparison) -> ([i128; 3], i128) {
-    let n = u128::from(p) * u128::from(total);
-    let q = u128::from(q.max(1));
-    // n / q <= T < 2^64 because p <= q.
-    let floor = |n: u128| i128::try_from(n / q).unwrap_or(i128::MAX);
+/// the bound rounded up, exactly: `p T` (up to 192 bits) through
+/// [`crate::amount::mul_div`], whose quotient `p T / q` <= T < 2^127.
+fn share_of_total(left: [i128; 3], p: u64, q: u64, total: u128, cmp: Comparison) -> ([i128; 3], i128) {
+    let (floor, divides) = crate::amount::mul_div(total, p, q.max(1));
+    let floor = i128::try_from(floor).unwrap_or(i128::MAX);
+    let zero = p == 0 || total == 0;
     match cmp {
-        Comparison::MoreThan => (left, floor(n) + 1),
-        Comparison::AtMost => (left.map(|x| -x), -floor(n)),
+        Comparison::MoreThan => (left, floor + 1),
+        Comparison::AtMost => (left.map(|x| -x), -floor),
         // ceil((1 - n) / q) = -floor((n - 1) / q), and 1 for n = 0.
-        Comparison::LessThan if n == 0 => (left.map(|x| -x), 1),
-        Comparison::LessThan => (left.map(|x| -x), -floor(n - 1)),
-        _ => (left, floor(n) + i128::from(n % q != 0)),
+        Comparison::LessThan if zero => (left.map(|x| -x), 1),
+        Comparison::LessThan => (left.map(|x| -x), -(floor - i128::from(divides))),
+        _ => (left, floor + i128::from(!divides)),
     }
+}
+
+/// The least exact yes-sum meeting `coef . (Y, N, A) >= bound` when
+/// everyone votes yes or no (N = T - Y, A = 0), as `Linear::binary_quota`
+/// computes it for the core's weights; `None` on overflow (refused).
+pub(super) fn exact_binary_quota(coef: [i32; 3], bound: i128, total: u128) -> Option<u128> {
+    let t = i128::try_from(total).ok()?;
+    let d = i128::from(coef[0]) - i128::from(coef[1]);
+    let need = bound.checked_sub(i128::from(coef[1]).checked_mul(t)?)?;
+    let never = t.checked_add(1)?;
+    let q = if d <= 0 {
+        if need <= 0 {
+            0
+        } else {
+            never
+        }
+    } else {
+        (need.div_euclid(d) + i128::from(need.rem_euclid(d) != 0)).clamp(0, never)
+    };
+    u128::try_from(q).ok()
 }
 
 #[cfg(test)]
@@ -244,7 +318,7 @@ mod tests {
                             let constant = i128::from(p) * i128::from(total);
                             let want = smallest(orient(scaled, constant, cmp));
                             assert_eq!(
-                                share_of_total(left, p, q, total, cmp),
+                                share_of_total(left, p, q, u128::from(total), cmp),
                                 want,
                                 "{p}/{q} of {total} {cmp:?}"
                             );
@@ -258,9 +332,9 @@ mod tests {
     #[test]
     fn shares_of_the_largest_total_do_not_overflow() {
         let (p, total) = (u64::MAX, u64::MAX - 3);
-        let (coef, bound) = share_of_total([1, 0, 0], p, p, total, Comparison::AtLeast);
+        let (coef, bound) = share_of_total([1, 0, 0], p, p, u128::from(total), Comparison::AtLeast);
         assert_eq!((coef, bound), ([1, 0, 0], i128::from(total)));
-        let (_, bound) = share_of_total([1, 1, 0], p - 1, p, total, Comparison::MoreThan);
+        let (_, bound) = share_of_total([1, 1, 0], p - 1, p, u128::from(total), Comparison::MoreThan);
         // With M = 2^64 - 1: (M - 1)(M - 3) / M = M - 4 + 3/M, so "more than"
         // is floor + 1 = M - 3, the total.
         assert_eq!(bound, i128::from(total));

@@ -60,6 +60,7 @@ pub(super) fn compile_game(source: &str, g: &Game) -> Result<RuleFile, Diagnosti
         })
         .collect();
     Ok(RuleFile {
+        amounts: Vec::new(),
         title: None,
         members,
         // The members form one group `p`, so that `p1..p5` names a range.
@@ -86,6 +87,7 @@ pub(super) fn compile_game(source: &str, g: &Game) -> Result<RuleFile, Diagnosti
                 kind: AttributeKind::Declared,
             }],
             conditions: vec![Condition { text, span: q_span }],
+            exact: vec![None],
         }],
     })
 }

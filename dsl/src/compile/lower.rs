@@ -18,7 +18,7 @@ use std::collections::HashMap;
 use clout_core::limits::{MAX_ATOMS, MAX_ATTRIBUTES, MAX_NODES};
 use clout_core::{Atom, Condition as CoreCondition, Error as CoreError, Linear, Node, Rule};
 
-use super::file::{Attribute, AttributeKind, CompiledRule, Condition, RuleFile};
+use super::file::{Amounts, Attribute, AttributeKind, CompiledRule, Condition, ExactCondition, RuleFile};
 use super::names::Declared;
 use super::one_line;
 use super::quotas::{Key, Resolved};
@@ -42,7 +42,9 @@ pub(super) fn lower_file(
     if !errors.is_empty() {
         return None;
     }
+    let amounts = amounts(&d);
     Some(RuleFile {
+        amounts,
         title: d.title.map(|(t, _)| t),
         members: d.members,
         groups: d.groups,
@@ -53,16 +55,43 @@ pub(super) fn lower_file(
     })
 }
 
-/// Declared weights, attribute-major: `table[a * members + i]`.
+/// Declared weights as the core counts them, attribute-major: `table[a * members + i]`.
 fn weight_table(d: &Declared<'_>) -> Vec<u64> {
     let n = d.members.len();
     let mut table = vec![0u64; d.attributes.len() * n];
     for (i, weights) in d.member_weights.iter().enumerate() {
         for &(a, w) in weights {
-            table[a * n + i] = w;
+            table[a * n + i] = d.weight_of(a, w);
         }
     }
     table
+}
+
+/// The exact amounts of every attribute declared with decimals.
+fn amounts(d: &Declared<'_>) -> Vec<Amounts> {
+    let n = d.members.len();
+    (0..d.attributes.len())
+        .filter_map(|a| {
+            let spec = d.amounts.get(a).copied().flatten()?;
+            let mut exact = vec![0u128; n];
+            for (i, weights) in d.member_weights.iter().enumerate() {
+                for &(b, w) in weights {
+                    if b == a {
+                        exact[i] = w;
+                    }
+                }
+            }
+            // Pass 1 checked the sum against MAX_EXACT_TOTAL.
+            let total = exact.iter().sum();
+            Some(Amounts {
+                attribute: a,
+                decimals: spec.decimals,
+                unit: d.scaled.get(a).copied().flatten(),
+                exact,
+                total,
+            })
+        })
+        .collect()
 }
 
 /// A core error on a rule in the file's words.
@@ -107,6 +136,7 @@ fn lower_rule(
         atoms: Vec::new(),
         linear: Vec::new(),
         conditions: Vec::new(),
+        exact: Vec::new(),
         nodes: Vec::new(),
         cache: HashMap::new(),
         too_big: false,
@@ -166,6 +196,7 @@ fn lower_rule(
             rule,
             attributes,
             conditions: lowering.conditions,
+            exact: lowering.exact,
         }),
         Err(e) => {
             errors.push(rule_error(decl.name.span, &decl.name.text, e));
@@ -207,6 +238,7 @@ struct Lowering {
     /// The four-state form of each atom, if any.
     linear: Vec<Option<Linear>>,
     conditions: Vec<Condition>,
+    exact: Vec<Option<ExactCondition>>,
     nodes: Vec<Node>,
     /// Nodes of each definition already lowered in this rule: a second use
     /// repeats them, sharing the atoms.
@@ -270,8 +302,17 @@ impl Lowering {
                 coefficients,
                 bound,
                 span,
-            } => self.atom(*key, 0, Some((*coefficients, *bound)), *span, source),
-            Resolved::Atom { key, quota, span } => self.atom(*key, *quota, None, *span, source),
+                exact,
+            } => {
+                let exact = exact.map(|(b, q)| (q, Some(b)));
+                self.atom(*key, 0, Some((*coefficients, *bound)), exact, *span, source)
+            }
+            Resolved::Atom {
+                key,
+                quota,
+                span,
+                exact,
+            } => self.atom(*key, *quota, None, exact.map(|q| (q, None)), *span, source),
             Resolved::All(v) | Resolved::Any(v) => {
                 // More operands than nodes allowed make the rule too big anyway.
                 let k = v.len().min(usize::from(u16::MAX)) as u16;
@@ -284,8 +325,24 @@ impl Lowering {
     }
 
     /// A new atom on `key` (with its four-state form, if any) and its node.
-    fn atom(&mut self, key: Key, quota: u64, four_state: Option<([i32; 3], i128)>, span: Span, source: &str) {
+    fn atom(
+        &mut self,
+        key: Key,
+        quota: u64,
+        four_state: Option<([i32; 3], i128)>,
+        exact: Option<(u128, Option<i128>)>,
+        span: Span,
+        source: &str,
+    ) {
         let attribute = self.attribute(key);
+        self.exact.push(match (key, exact) {
+            (Key::Declared(a), Some((quota, bound))) => Some(ExactCondition {
+                attribute: a,
+                quota,
+                bound,
+            }),
+            _ => None,
+        });
         self.atoms.push(Atom { attribute, quota });
         self.linear
             .push(four_state.map(|([yes, no, abstain], bound)| Linear {

@@ -37,20 +37,76 @@ mod quotas;
 mod references;
 
 pub use blocs::MAX_BLOC_ENTRIES;
-pub use file::{Attribute, AttributeKind, Bloc, CompiledRule, Condition, Group, Member, RuleFile};
+pub use file::{
+    Amounts, Attribute, AttributeKind, Bloc, CompiledRule, Condition, ExactCondition, Group, Member, RuleFile,
+};
 
-/// Compiles a rule file. Returns every error found.
+/// Where the data tables a rule file names come from: the compiler never
+/// touches the file system. The command line reads files relative to the
+/// rule file; the Python and WebAssembly packages pass text.
+///
+/// `table(path)` gets the path exactly as written in the rule file and
+/// returns the name to show in messages (the resolved path, say) and the
+/// bytes, or why it cannot (shown after "cannot read the table `PATH`: ").
+/// Implemented for closures and for a map from path to text.
+pub trait Tables {
+    /// The table written `path` in the rule file: its shown name and bytes.
+    fn table(&mut self, path: &str) -> Result<(String, Vec<u8>), String>;
+}
+
+impl<F: FnMut(&str) -> Result<(String, Vec<u8>), String>> Tables for F {
+    fn table(&mut self, path: &str) -> Result<(String, Vec<u8>), String> {
+        self(path)
+    }
+}
+
+impl Tables for std::collections::HashMap<String, String> {
+    fn table(&mut self, path: &str) -> Result<(String, Vec<u8>), String> {
+        match self.get(path) {
+            Some(text) => Ok((path.to_string(), text.as_bytes().to_vec())),
+            None => Err(format!(
+                "no table of that name was given (given: {})",
+                if self.is_empty() {
+                    "none".to_string()
+                } else {
+                    let mut names: Vec<&str> = self.keys().map(String::as_str).collect();
+                    names.sort_unstable();
+                    names.join(", ")
+                }
+            )),
+        }
+    }
+}
+
+/// No tables: a rule file that names one is refused.
+pub struct NoTables;
+
+impl Tables for NoTables {
+    fn table(&mut self, _path: &str) -> Result<(String, Vec<u8>), String> {
+        Err("this rule text was compiled without tables (pass them with `compile_with`)".to_string())
+    }
+}
+
+/// Compiles a rule file. Returns every error found. A rule file that takes
+/// members from a table is refused: see [`compile_with`].
 ///
 /// At most [`MAX_DIAGNOSTICS`](crate::diagnostic::MAX_DIAGNOSTICS) errors are kept, followed by a note that
 /// counts the rest.
 pub fn compile(source: &str) -> Result<RuleFile, Vec<Diagnostic>> {
+    compile_with(source, &mut NoTables)
+}
+
+/// Compiles a rule file whose `members NAME from "FILE"` declarations read
+/// their tables through `tables`. Errors in a table are placed in it
+/// ([`Diagnostic::place`]).
+pub fn compile_with(source: &str, tables: &mut dyn Tables) -> Result<RuleFile, Vec<Diagnostic>> {
     let mut errors = CappedErrors::new();
     let parsed = syntax::parse_recovering(source, &mut errors);
     match parsed.file {
         Some(File::Game(g)) if errors.is_empty() => game::compile_game(source, &g).map_err(|e| vec![e]),
         Some(File::Declarations(d)) => {
             let syntax_errors = errors.total();
-            let declared = names::declare(source, &d, parsed.set_aside, &mut errors);
+            let declared = names::declare(source, &d, parsed.set_aside, tables, &mut errors);
             // Pass 1's own errors (duplicates, limits) leave the namespace unsure: stop.
             if errors.total() > syntax_errors {
                 return Err(errors.into_vec());
@@ -109,7 +165,13 @@ mod testing {
         let Some(File::Declarations(decls)) = parsed.file else {
             panic!("not declarations")
         };
-        let mut d = names::declare(source, &decls, parsed.set_aside, &mut errors);
+        let mut d = names::declare(
+            source,
+            &decls,
+            parsed.set_aside,
+            &mut super::NoTables,
+            &mut errors,
+        );
         let out = passes(&mut d, &mut errors);
         let shown = errors
             .into_vec()

@@ -38,6 +38,8 @@ pub(super) enum Resolved {
         key: Key,
         quota: u64,
         span: Span,
+        /// On an attribute with rounded weights: the quota on the exact amounts.
+        exact: Option<u128>,
     },
     /// A four-state condition `yes*Y + no*N + abstain*A >= bound` on `key`.
     Linear {
@@ -45,6 +47,9 @@ pub(super) enum Resolved {
         coefficients: [i32; 3],
         bound: i128,
         span: Span,
+        /// On an attribute with rounded weights: the bound on the exact
+        /// sums and the exact two-state quota.
+        exact: Option<(i128, u128)>,
     },
     All(Vec<Resolved>),
     Any(Vec<Resolved>),
@@ -55,34 +60,82 @@ pub(super) enum Resolved {
 /// Resolves every definition and rule of `d`, in declaration order; `None`
 /// for one with an error.
 pub(super) fn resolve_all(d: &Declared<'_>, errors: &mut CappedErrors) -> Vec<Option<Resolved>> {
-    let totals = totals(d, errors);
-    let mut resolver = Resolver { d, totals, errors };
+    let totals = totals(d);
+    let scales = (0..d.attributes.len())
+        .map(|a| {
+            let unit = d.scaled.get(a).copied().flatten()?;
+            let exact = d
+                .member_weights
+                .iter()
+                .flat_map(|w| w.iter().filter(|(b, _)| *b == a))
+                .map(|&(_, w)| w)
+                .sum::<u128>();
+            Some((unit, exact))
+        })
+        .collect();
+    let mut resolver = Resolver {
+        d,
+        totals,
+        scales,
+        errors,
+    };
     d.named.iter().map(|n| resolver.resolve(&n.decl.expr)).collect()
 }
 
-/// Each declared attribute's total, `None` past [`MAX_TOTAL`] (reported).
-fn totals(d: &Declared<'_>, errors: &mut CappedErrors) -> Vec<Option<u64>> {
+/// Each declared attribute's total of the weights the core counts, `None`
+/// past [`MAX_TOTAL`] (pass 1 reported it).
+fn totals(d: &Declared<'_>) -> Vec<Option<u64>> {
     let mut totals: Vec<Option<u64>> = vec![Some(0); d.attributes.len()];
     for weights in &d.member_weights {
         for &(a, w) in weights {
             totals[a] = totals[a]
-                .and_then(|t| t.checked_add(w))
+                .and_then(|t| t.checked_add(d.weight_of(a, w)))
                 .filter(|&t| t <= MAX_TOTAL);
         }
     }
-    for (a, t) in totals.iter().enumerate() {
-        if t.is_none() {
-            let (name, span) = &d.attributes[a];
-            errors.push(
-                Diagnostic::error(
-                    *span,
-                    format!("the weights of `{name}` add up to more than 2^64 - 4"),
-                )
-                .with_hint("express the weights in a coarser unit"),
-            );
-        }
-    }
     totals
+}
+
+/// The amount of base units behind a rule's `ATTRIBUTE >= AMOUNT`: the
+/// quota on exact sums for "yes-sum `cmp` `bound`" (or "no-sum" with
+/// `against`), as [`quota::threshold`] and [`quota::against`] compute it
+/// for the core's weights; `None` when it does not fit.
+fn exact_quota(cmp: quota::Comparison, bound: ExactBound, total: u128, against: bool) -> Option<u128> {
+    use quota::Comparison as C;
+    let share = |p: u64, d: u64| crate::amount::mul_div(total, p, d.max(1));
+    if !against {
+        return match (cmp, bound) {
+            (C::AtLeast, ExactBound::Amount(k)) => Some(k),
+            (C::MoreThan, ExactBound::Amount(k)) => k.checked_add(1),
+            (C::AtLeast, ExactBound::Share(p, d)) => {
+                let (f, divides) = share(p, d);
+                Some(f + u128::from(!divides))
+            }
+            (C::MoreThan, ExactBound::Share(p, d)) => Some(share(p, d).0 + 1),
+            _ => None,
+        };
+    }
+    let limit = match (cmp, bound) {
+        (C::AtMost, ExactBound::Amount(k)) => Some(k),
+        (C::LessThan, ExactBound::Amount(k)) => k.checked_sub(1),
+        (C::AtMost, ExactBound::Share(p, d)) => Some(share(p, d).0),
+        (C::LessThan, ExactBound::Share(p, d)) => {
+            let (f, divides) = share(p, d);
+            (f + u128::from(!divides)).checked_sub(1)
+        }
+        _ => return None,
+    };
+    Some(match limit {
+        None => total + 1,
+        Some(l) => total.saturating_sub(l),
+    })
+}
+
+/// A bound on exact amounts: base units, or a share of the total.
+#[derive(Clone, Copy)]
+enum ExactBound {
+    Amount(u128),
+    Share(u64, u64),
 }
 
 /// What a condition sums, for messages: `seats`, `count` or a bloc.
@@ -136,10 +189,21 @@ pub(super) fn check_quota(span: Span, text: &str, q: u64, s: &Subject<'_>) -> Re
 pub(super) struct Resolver<'r, 'a> {
     pub d: &'r Declared<'a>,
     pub totals: Vec<Option<u64>>,
+    /// Per declared attribute with rounded weights: (unit, exact total).
+    pub scales: Vec<Option<(u128, u128)>>,
     pub errors: &'r mut CappedErrors,
 }
 
 impl Resolver<'_, '_> {
+    /// The decimals of `key`'s amounts, and (unit, exact total) when its
+    /// weights are rounded.
+    pub fn amount_scale(&self, key: Key) -> (u32, Option<(u128, u128)>) {
+        match key {
+            Key::Declared(a) => (self.d.decimals(a), self.scales.get(a).copied().flatten()),
+            _ => (0, None),
+        }
+    }
+
     /// The condition as written, on one line.
     pub fn text(&self, span: Span) -> String {
         one_line(span.text(self.d.source))
@@ -204,11 +268,13 @@ impl Resolver<'_, '_> {
                 key: Key::Member(i),
                 quota: 1,
                 span: name.span,
+                exact: None,
             }),
             Some(Kind::Bloc(b)) => Some(Resolved::Atom {
                 key: Key::Bloc(b),
                 quota: self.d.blocs[b].members.len() as u64,
                 span: name.span,
+                exact: None,
             }),
             Some(Kind::Named(k)) => Some(Resolved::Ref(k)),
             Some(Kind::Attribute(_)) => {
@@ -301,6 +367,7 @@ impl Resolver<'_, '_> {
                 key: Key::Bloc(b),
                 quota,
                 span,
+                exact: None,
             })
     }
 
@@ -368,7 +435,24 @@ impl Resolver<'_, '_> {
             return self.four_state(t, key, total, &text);
         }
         let comparison = self.comparison(t, &text)?;
+        let (decimals, scale) = self.amount_scale(key);
+        if let Some((unit, exact_total)) = scale {
+            return self.rounded_threshold(t, key, comparison, decimals, (unit, exact_total), total, &text);
+        }
         let bound = match t.amount.value {
+            // An amount of an attribute with decimals is in its own unit: `tokens >= 1000` is 1000 tokens.
+            AmountValue::Integer(k) if decimals > 0 => {
+                match u64::try_from(u128::from(k) * crate::amount::pow10(decimals)) {
+                    Ok(k) => Bound::Amount(k),
+                    Err(_) => {
+                        self.errors.push(
+                            Diagnostic::error(t.amount.span, "the amount is too large")
+                                .with_hint("amounts are at most 2^64 - 2 base units"),
+                        );
+                        return None;
+                    }
+                }
+            }
             AmountValue::Integer(k) => Bound::Amount(k),
             AmountValue::Share {
                 numerator,
@@ -402,7 +486,77 @@ impl Resolver<'_, '_> {
                 key,
                 quota,
                 span: t.span,
+                exact: None,
             })
+    }
+
+    /// A threshold on an attribute whose weights are rounded to `unit`: the
+    /// quota on the exact amounts, and the core's quota in units, its
+    /// ceiling (at most the rounded total). The report certifies the rest.
+    #[allow(clippy::too_many_arguments)]
+    fn rounded_threshold(
+        &mut self,
+        t: &Threshold,
+        key: Key,
+        comparison: quota::Comparison,
+        decimals: u32,
+        (unit, exact_total): (u128, u128),
+        total: u64,
+        text: &str,
+    ) -> Option<Resolved> {
+        let bound = match t.amount.value {
+            AmountValue::Integer(k) => ExactBound::Amount(u128::from(k) * crate::amount::pow10(decimals)),
+            AmountValue::Share {
+                numerator,
+                denominator,
+                ..
+            } => ExactBound::Share(numerator, denominator),
+        };
+        let against = t.against.is_some();
+        let Some(exact) = exact_quota(comparison, bound, exact_total, against) else {
+            self.errors.push(
+                Diagnostic::error(t.amount.span, "the amount is too large")
+                    .with_hint("amounts are at most 2^94 - 1 base units"),
+            );
+            return None;
+        };
+        let name = t.subject.span().text(self.d.source);
+        if exact == 0 || exact > exact_total {
+            // Reported as for whole weights, in base units.
+            let subject = Subject {
+                name,
+                total: u64::try_from(exact_total).unwrap_or(u64::MAX),
+                against,
+                bloc: false,
+            };
+            let q = u64::try_from(exact).unwrap_or(u64::MAX);
+            return self
+                .check(
+                    key,
+                    t.span,
+                    text,
+                    if exact == 0 {
+                        0
+                    } else {
+                        q.max(subject.total.saturating_add(1))
+                    },
+                    &subject,
+                )
+                .then_some(Resolved::Atom {
+                    key,
+                    quota: 0,
+                    span: t.span,
+                    exact: Some(exact),
+                });
+        }
+        let rounded = crate::amount::ceil_div(i128::try_from(exact).unwrap_or(i128::MAX), unit);
+        let quota = u64::try_from(rounded).unwrap_or(u64::MAX).clamp(1, total.max(1));
+        Some(Resolved::Atom {
+            key,
+            quota,
+            span: t.span,
+            exact: Some(exact),
+        })
     }
 
     /// The comparison in the core's terms, or an explained refusal.
@@ -491,6 +645,7 @@ mod tests {
                     key: Key::Member(0),
                     quota: 1,
                     span: Span::new(75, 76),
+                    exact: None,
                 }
             ]))
         );

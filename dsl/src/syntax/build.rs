@@ -14,8 +14,9 @@ use pest::iterators::Pair;
 use super::grammar::Rule as G;
 use super::numbers;
 use super::tree::{
-    Amount, AmountValue, BlocDecl, Comparison, Declaration, Expr, File, Game, GameWeight, GroupDecl,
-    GroupSide, GroupWord, MemberDecl, Name, NamedExpr, Subject, Threshold, Weight,
+    Amount, AmountValue, AttributeDecl, BlocDecl, Comparison, Declaration, Expr, File, Game, GameWeight,
+    GroupDecl, GroupSide, GroupWord, MemberDecl, Name, NamedExpr, Quantity, Subject, TableDecl, Threshold,
+    Weight,
 };
 use crate::diagnostic::{Diagnostic, Span};
 
@@ -83,7 +84,7 @@ impl Builder {
         let span = self.span_of(&pair);
         let kind = pair.as_rule();
         // Skip the keyword.
-        let mut inner = pair.into_inner().skip(1);
+        let mut inner = pair.into_inner().skip(1).peekable();
         match kind {
             G::title => {
                 let text = inner
@@ -100,12 +101,31 @@ impl Builder {
             }
             G::group => {
                 let name = self.name(inner.next());
+                if let Some(table) = inner.next_if(|p| p.as_rule() == G::table) {
+                    return Declaration::Table(self.table(name, table, span));
+                }
                 let count = inner.next().map(|r| self.repeat(r)).unwrap_or_default();
                 let weights = inner.map(|w| self.weight(w)).collect();
                 Declaration::Group(GroupDecl {
                     name,
                     count,
                     weights,
+                    span,
+                })
+            }
+            G::attribute => {
+                let name = self.name(inner.next());
+                // Skip `decimals`.
+                let decimals = inner
+                    .nth(1)
+                    .map(|d| (self.integer(&d), self.span_of(&d)))
+                    .unwrap_or_default();
+                // Skip `unit`.
+                let unit = inner.nth(1).map(|u| self.quantity(&u));
+                Declaration::Attribute(AttributeDecl {
+                    name,
+                    decimals,
+                    unit,
                     span,
                 })
             }
@@ -130,11 +150,55 @@ impl Builder {
         }
     }
 
+    /// `from "FILE" name=COLUMN attr=COLUMN ...` of a `members` declaration.
+    fn table(&mut self, name: Name, pair: Pair<'_, G>, span: Span) -> TableDecl {
+        let mut inner = pair.into_inner().skip(1);
+        let path = inner
+            .next()
+            .map(|s| {
+                let text = s
+                    .clone()
+                    .into_inner()
+                    .next()
+                    .map_or("", |t| t.as_str())
+                    .to_string();
+                (text, self.span_of(&s))
+            })
+            .unwrap_or_default();
+        let mut name_column = None;
+        let mut columns = Vec::new();
+        for column in inner {
+            let mut parts = column.into_inner();
+            let attribute = self.name(parts.next());
+            let from = self.name(parts.next());
+            if attribute.text == "name" && name_column.is_none() && !attribute.quoted {
+                name_column = Some(from);
+            } else {
+                columns.push((attribute, from));
+            }
+        }
+        TableDecl {
+            name,
+            path,
+            name_column,
+            columns,
+            span,
+        }
+    }
+
+    fn quantity(&mut self, pair: &Pair<'_, G>) -> Quantity {
+        let span = self.span_of(pair);
+        numbers::quantity(pair.as_str(), span).unwrap_or_else(|e| {
+            self.errors.push(e);
+            Quantity::default()
+        })
+    }
+
     fn weight(&mut self, pair: Pair<'_, G>) -> Weight {
         let span = self.span_of(&pair);
         let mut inner = pair.into_inner();
         let attribute = self.name(inner.next());
-        let value = inner.next().map(|v| self.integer(&v)).unwrap_or(0);
+        let value = inner.next().map(|v| self.quantity(&v)).unwrap_or_default();
         Weight {
             attribute,
             value,
@@ -290,21 +354,49 @@ impl Builder {
         })
     }
 
-    fn name(&self, pair: Option<Pair<'_, G>>) -> Name {
+    fn name(&mut self, pair: Option<Pair<'_, G>>) -> Name {
         pair.map(|p| self.name_of(&p)).unwrap_or(Name {
             text: String::new(),
             span: Span::default(),
+            quoted: false,
         })
     }
 
-    fn name_of(&self, pair: &Pair<'_, G>) -> Name {
+    /// A plain name as written, or a quoted one unescaped (a bad escape is
+    /// a number-like error: the declaration is set aside).
+    fn name_of(&mut self, pair: &Pair<'_, G>) -> Name {
+        let span = self.span_of(pair);
+        let quoted = pair
+            .clone()
+            .into_inner()
+            .find(|p| p.as_rule() == G::quoted_name)
+            .and_then(|q| q.into_inner().next());
+        let Some(inner) = quoted else {
+            return Name {
+                text: pair.as_str().to_string(),
+                span,
+                quoted: false,
+            };
+        };
+        let text = match crate::quote::unescape(inner.as_str()) {
+            Ok(text) => text,
+            Err((at, message)) => {
+                let start = self.span_of(&inner).start + at;
+                self.errors.push(
+                    Diagnostic::error(Span::new(start, start + 2), message)
+                        .with_hint("in a quoted name write `\\\"` for a quote, `\\\\` for a backslash, `\\u{e9}` for any character"),
+                );
+                String::new()
+            }
+        };
         Name {
-            text: pair.as_str().to_string(),
-            span: self.span_of(pair),
+            text,
+            span,
+            quoted: true,
         }
     }
 
-    fn subject_of(&self, pair: Pair<'_, G>, fallback: Span) -> Subject {
+    fn subject_of(&mut self, pair: Pair<'_, G>, fallback: Span) -> Subject {
         match pair.into_inner().next() {
             Some(s) if s.as_rule() == G::kw_count => Subject::Count(self.span_of(&s)),
             Some(s) => Subject::Name(self.name_of(&s)),

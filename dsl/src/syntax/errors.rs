@@ -39,6 +39,7 @@ pub(super) fn syntax_error(
             G::kw_title,
             G::kw_member,
             G::kw_members,
+            G::kw_attribute,
             G::kw_bloc,
             G::kw_define,
             G::kw_rule,
@@ -116,9 +117,7 @@ pub(super) fn position(e: &pest::error::Error<G>) -> usize {
     }
 }
 
-const KEYWORDS: [&str; 12] = [
-    "title", "member", "members", "bloc", "define", "rule", "count", "against", "of", "and", "or", "not",
-];
+use crate::quote::KEYWORDS;
 
 /// The end of the last token before `at` (skipping white space and
 /// comments), found by walking back line by line from `at`.
@@ -163,6 +162,8 @@ fn starts_declaration(kind: G) -> bool {
             | G::title
             | G::member
             | G::group
+            | G::attribute
+            | G::kw_attribute
             | G::bloc
             | G::define
             | G::rule
@@ -179,14 +180,14 @@ fn describe(kind: G) -> Option<&'static str> {
     Some(match kind {
         G::EOI => "the end of the file",
         k if starts_declaration(k) => {
-            "a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`)"
+            "a declaration (`title`, `member`, `members`, `attribute`, `bloc`, `define` or `rule`)"
         }
         G::game => "`[`",
         G::close => "`)`",
         G::comma => "`,`",
         G::semicolon => "`;`",
         G::game_end => "`]`",
-        G::name | G::reference | G::subject => "a name",
+        G::name | G::plain_name | G::quoted_name | G::reference | G::subject | G::column => "a name",
         G::weight => "a weight such as `seats=3`",
         G::repeat => "a repeat count such as `x12`",
         G::expr | G::any_of | G::all_of | G::condition | G::k_of | G::negation | G::primary => "a condition",
@@ -195,7 +196,12 @@ fn describe(kind: G) -> Option<&'static str> {
         G::kw_of => "`of`",
         G::against | G::kw_against => "`against`",
         G::comparison => "a comparison (`>=` or `>`)",
-        G::amount | G::integer | G::percent | G::fraction | G::decimal | G::bare_decimal => "an amount",
+        G::amount | G::integer | G::percent | G::fraction | G::decimal | G::bare_decimal | G::quantity => {
+            "an amount"
+        }
+        G::kw_decimals => "`decimals`",
+        G::kw_unit => "`unit`",
+        G::table | G::kw_from => "`from`",
         G::game_weight => "a weight",
         G::string | G::text => "a quoted title",
         G::kw_count => "`count`",
@@ -207,7 +213,7 @@ fn describe(kind: G) -> Option<&'static str> {
 /// expected rules wins.
 fn hint_for(kind: G) -> Option<(u8, &'static str)> {
     let declaration =
-        "every declaration starts with one of the keywords `title`, `member`, `members`, `bloc`, `define`, `rule`";
+        "every declaration starts with one of the keywords `title`, `member`, `members`, `attribute`, `bloc`, `define`, `rule`";
     Some(match kind {
         G::game_end | G::comma | G::semicolon => {
             (0, "the notation is `[q; w1, w2, ...]`, with `w xK` for K members of weight w")
@@ -219,12 +225,12 @@ fn hint_for(kind: G) -> Option<(u8, &'static str)> {
             "a condition is `ATTRIBUTE >= AMOUNT`, `K of BLOC`, a member or bloc name, or conditions joined by `and` / `or`",
         ),
         G::comparison => (4, "a condition reads `ATTRIBUTE >= AMOUNT`, e.g. `seats > 1/2` or `count against < 3`"),
-        G::amount | G::integer | G::percent | G::fraction => {
+        G::amount | G::integer | G::percent | G::fraction | G::quantity => {
             (5, "an amount is a whole number (`12`), a percentage (`62.5%`) or a fraction (`2/3`)")
         }
         G::repeat => (6, "`members NAME xK` declares K identical members NAME1 .. NAMEK"),
         G::weight => (7, "weights are written `attribute=number`, e.g. `seats=9`"),
-        G::name => (8, "names start with a letter or `_`; keywords such as `count`, `of` and `rule` cannot be names"),
+        G::name => (8, "names start with a letter or `_`, or are written in double quotes (`\"0x3f5a\"`); keywords such as `count`, `of` and `rule` are quoted to be names"),
         G::string => (9, "write the title in double quotes on one line"),
         _ => return None,
     })

@@ -143,7 +143,7 @@ impl SetAside {
     /// Sets a chunk aside; `well_formed` when pest read it (it then holds
     /// exactly one declaration, the one its keyword starts).
     fn add(&mut self, source: &str, chunk: &Chunk, well_formed: bool) {
-        let declares_members = matches!(chunk.keyword, None | Some("member" | "members"));
+        let declares_members = matches!(chunk.keyword, None | Some("member" | "members" | "attribute"));
         // A broken declaration over several lines may hide a misspelt `member` line.
         let totals = declares_members || (!well_formed && chunk.several_lines);
         self.add_text(&source[chunk.start..chunk.end], totals);
@@ -154,6 +154,8 @@ impl SetAside {
         let (span, totals) = match declaration {
             Declaration::Member(m) => (m.span, true),
             Declaration::Group(g) => (g.span, true),
+            Declaration::Table(t) => (t.span, true),
+            Declaration::Attribute(a) => (a.span, true),
             Declaration::Title { span, .. } => (*span, false),
             Declaration::Bloc(b) => (b.span, false),
             Declaration::Define(n) | Declaration::Rule(n) => (n.span, false),
@@ -516,7 +518,7 @@ mod tests {
         let src = "member a seats=1\nrule r = a\nrule s seats\nrule u = a\nrule t seats\n";
         let errors = errors_of(src);
         assert_eq!(errors.len(), 2);
-        let expected = "expected a declaration (`title`, `member`, `members`, `bloc`, `define` or `rule`), \
+        let expected = "expected a declaration (`title`, `member`, `members`, `attribute`, `bloc`, `define` or `rule`), \
                         a comparison (`>=` or `>`), `against`, `and` or `or`, found `rule`";
         assert_eq!(errors[0], format!("3:1 {expected}"));
         assert_eq!(errors[1], format!("5:1 {expected}"));
@@ -536,7 +538,8 @@ mod tests {
 
     #[test]
     fn numbers_set_their_declaration_aside() {
-        let src = "member a seats=99999999999999999999\nmembers g x2\nrule r = a and g1\n";
+        let src =
+            "member a seats=9999999999999999999999999999999999999999\nmembers g x2\nrule r = a and g1\n";
         let mut errors = CappedErrors::new();
         let parsed = parse_recovering(src, &mut errors);
         assert_eq!(errors.total(), 1);

@@ -8,7 +8,7 @@
 //! No floats anywhere. Time O(digits); no arithmetic that can overflow
 //! (digits go through `str::parse::<u64>`, which refuses what does not fit).
 
-use super::tree::AmountValue;
+use super::tree::{AmountValue, Quantity};
 use crate::diagnostic::{Diagnostic, Span};
 
 /// Most decimals in a percentage (so that `10^(decimals+2)` fits in `u64`).
@@ -20,6 +20,24 @@ pub(super) fn integer(written: &str, span: Span) -> Result<u64, Diagnostic> {
         Diagnostic::error(span, format!("the number {written} is too large"))
             .with_hint("numbers are at most 18_446_744_073_709_551_615 (2^64 - 1)")
     })
+}
+
+/// `1520.565494` (or `412_000`) as an exact [`Quantity`]; more than 38
+/// digits is an error at `span`.
+pub(super) fn quantity(written: &str, span: Span) -> Result<Quantity, Diagnostic> {
+    let digits = written.replace('_', "");
+    let (whole, decimals) = digits.split_once('.').unwrap_or((&digits, ""));
+    format!("{whole}{decimals}")
+        .parse::<u128>()
+        .map(|mantissa| Quantity {
+            mantissa,
+            scale: decimals.len() as u32,
+            span,
+        })
+        .map_err(|_| {
+            Diagnostic::error(span, format!("the number {written} is too large"))
+                .with_hint("amounts have at most 38 digits")
+        })
 }
 
 /// `62.5%` as the share 625/1000 (the percent sign included in `written`).

@@ -20,7 +20,15 @@ pub const MAX_NESTING: usize = 64;
 
 /// The words that start a declaration, longest first where one is a prefix
 /// of another.
-pub(super) const DECLARATION_KEYWORDS: [&str; 6] = ["title", "members", "member", "bloc", "define", "rule"];
+pub(super) const DECLARATION_KEYWORDS: [&str; 7] = [
+    "title",
+    "members",
+    "member",
+    "attribute",
+    "bloc",
+    "define",
+    "rule",
+];
 
 /// One stretch of the source: the text before the first declaration
 /// keyword, or one declaration keyword up to the next.
@@ -85,10 +93,17 @@ pub(super) fn chunks(source: &str) -> Vec<Chunk> {
     let mut in_number = false;
     // Lines of the current chunk that hold code, counted up to 2.
     let (mut code_lines, mut line_has_code) = (0u8, false);
+    // After a backslash inside quotes: the next byte is escaped.
+    let mut escaped = false;
     for (i, &b) in bytes.iter().enumerate() {
         match inside {
+            Inside::Quote if escaped && b != b'\n' => escaped = false,
+            Inside::Quote if b == b'\\' => escaped = true,
             Inside::Quote if b == b'"' => inside = Inside::Code,
-            Inside::Quote | Inside::Comment if b == b'\n' => inside = Inside::Code,
+            Inside::Quote | Inside::Comment if b == b'\n' => {
+                escaped = false;
+                inside = Inside::Code;
+            }
             Inside::Quote | Inside::Comment => {}
             Inside::Code => {
                 if b == b'\n' {

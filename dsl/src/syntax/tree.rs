@@ -13,6 +13,8 @@ pub struct Name {
     pub text: String,
     /// Where it is written.
     pub span: Span,
+    /// Written in quotes (`"0x3f…"`).
+    pub quoted: bool,
 }
 
 /// A parsed file: declarations, or the trade's `[q; w1, ..., wn]` notation.
@@ -60,6 +62,10 @@ pub enum Declaration {
     Member(MemberDecl),
     /// `members NAME xK attr=v ...`: K identical members NAME1..NAMEK.
     Group(GroupDecl),
+    /// `members NAME from "FILE" name=COLUMN attr=COLUMN ...`: one member per row of a table.
+    Table(TableDecl),
+    /// `attribute NAME decimals D [unit U]`: exact decimal amounts.
+    Attribute(AttributeDecl),
     /// `bloc NAME = a, b, ...`.
     Bloc(BlocDecl),
     /// `define NAME = EXPR`: a named condition for use in rules.
@@ -97,9 +103,49 @@ pub struct GroupDecl {
 pub struct Weight {
     /// The attribute.
     pub attribute: Name,
-    /// The weight.
-    pub value: u64,
+    /// The weight as written (a whole number or an exact decimal).
+    pub value: Quantity,
     /// The whole assignment.
+    pub span: Span,
+}
+
+/// A non-negative amount as written: `mantissa / 10^scale` exactly
+/// (`1520.565494` is 1520565494 with scale 6).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub struct Quantity {
+    /// The digits, without the point.
+    pub mantissa: u128,
+    /// How many of them are decimals.
+    pub scale: u32,
+    /// Where it is written.
+    pub span: Span,
+}
+
+/// `members NAME from "FILE" name=COLUMN attr=COLUMN ...`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct TableDecl {
+    /// The bloc of all the table's members.
+    pub name: Name,
+    /// The file, as written between the quotes (relative to the rule file).
+    pub path: (String, Span),
+    /// The column that names the members (`name=COLUMN`), if given.
+    pub name_column: Option<Name>,
+    /// Attribute and the column that holds it, in the order written.
+    pub columns: Vec<(Name, Name)>,
+    /// The whole declaration.
+    pub span: Span,
+}
+
+/// `attribute NAME decimals D [unit U]`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct AttributeDecl {
+    /// The attribute.
+    pub name: Name,
+    /// Decimals of its amounts, and where written.
+    pub decimals: (u64, Span),
+    /// The unit weights are counted in when the exact amounts are too large.
+    pub unit: Option<Quantity>,
+    /// The whole declaration.
     pub span: Span,
 }
 

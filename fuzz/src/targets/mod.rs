@@ -12,6 +12,7 @@
 //! test can include it with `#[path]`.
 
 pub mod c_abi;
+pub mod data_table;
 pub mod engines;
 pub mod image_decide;
 pub mod image_load;
@@ -33,7 +34,7 @@ pub struct Target {
 }
 
 /// Every target.
-pub const TARGETS: [Target; 5] = [
+pub const TARGETS: [Target; 6] = [
     Target {
         name: "rule_text",
         run: rule_text::run,
@@ -63,6 +64,12 @@ pub const TARGETS: [Target; 5] = [
         run: engines::run,
         max_len: 512,
         dictionary: &[],
+    },
+    Target {
+        name: "data_table",
+        run: data_table::run,
+        max_len: 4096,
+        dictionary: data_table::DICTIONARY,
     },
 ];
 
