@@ -56,15 +56,37 @@ pub struct RuleFile {
 }
 
 /// Compiles a rule file (or `[q; w1, ..., wn]`); throws a `CloutError` with
-/// every error's line and column when it does not compile.
-#[wasm_bindgen(unchecked_return_type = "RuleFile")]
-pub fn parse(#[wasm_bindgen(unchecked_param_type = "string")] text: JsValue) -> Result<RuleFile, JsValue> {
+/// every error's line and column when it does not compile. `tables` maps the
+/// paths that `members NAME from "FILE"` declarations name to their text.
+#[wasm_bindgen(skip_typescript)] // typed in types.d.ts (optional argument)
+pub fn parse(text: JsValue, tables: Option<JsValue>) -> Result<RuleFile, JsValue> {
     let Some(text) = text.as_string() else {
         return Err(throw(
             clout::Failure::input("parse: the rule text must be a string").into(),
         ));
     };
-    api::parse(&text).map(|inner| RuleFile { inner }).map_err(throw)
+    let tables = match from_js(tables)? {
+        Value::Null => Default::default(),
+        Value::Object(map) => map
+            .into_iter()
+            .map(|(path, v)| match v {
+                Value::String(t) => Ok((path, t)),
+                _ => Err(throw(
+                    clout::Failure::input(format!("parse: the table `{path}` must be text"))
+                        .with_hint("pass tables as { \"holders.csv\": text }")
+                        .into(),
+                )),
+            })
+            .collect::<Result<_, _>>()?,
+        _ => {
+            return Err(throw(
+                clout::Failure::input("parse: tables must be an object of path to text").into(),
+            ))
+        }
+    };
+    api::parse_with(&text, tables)
+        .map(|inner| RuleFile { inner })
+        .map_err(throw)
 }
 
 #[wasm_bindgen]

@@ -1,4 +1,11 @@
 /**
+ * Compiles a rule file (or `[q; w1, ..., wn]`); throws a `CloutError` with every
+ * error's line and column when it does not compile. `tables` maps the paths that
+ * `members NAME from "FILE"` declarations name to their text.
+ */
+export function parse(text: string, tables?: Record<string, string>): RuleFile;
+
+/**
  * The methods of a compiled rule file that take an optional options object
  * (declared here so that the argument can be left out).
  */

@@ -10,6 +10,7 @@ import { createRequire } from 'node:module';
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { examples, parseExample } from './examples.mjs';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 const pkg = createRequire(import.meta.url)('../pkg-node');
@@ -38,10 +39,10 @@ function ours(call) {
 // dimension search; the command's debug build takes most of a minute on it.
 const SLOW = new Set(['compact.clout qualified simplify']);
 
-const examples = readdirSync(join(root, 'examples')).filter((f) => f.endsWith('.clout')).sort();
+
 for (const name of examples) {
   const path = join('examples', name);
-  const file = pkg.parse(readFileSync(join(root, path), 'utf8'));
+  const file = parseExample(pkg, name);
   for (const rule of file.rules) {
     test(`drafting: ${name}, rule ${rule}: simplify, order, coalitions, sweep as the command`, () => {
       const base = [path, '--rule', rule];
