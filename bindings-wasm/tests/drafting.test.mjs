@@ -40,7 +40,9 @@ function ours(call) {
 const SLOW = new Set(['compact.clout qualified simplify']);
 
 
-for (const name of examples) {
+// treasury.clout (3,000 holders from a table) is left to package.test.mjs:
+// its drafting answers take the command's debug build minutes each.
+for (const name of examples.filter((n) => n !== 'treasury.clout')) {
   const path = join('examples', name);
   const file = parseExample(pkg, name);
   for (const rule of file.rules) {
