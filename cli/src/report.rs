@@ -83,7 +83,10 @@ pub fn json(value: &impl serde::Serialize) -> String {
 
 /// The planner's view of the rule, for `--explain`.
 fn explain(rule: &CompiledRule, args: &ReportArgs) -> String {
-    let r = &rule.rule;
+    let Ok(game) = report::two_state_game(rule) else {
+        return String::new();
+    };
+    let r = &game.rule.rule;
     let count_bytes = 8 * exact::limbs_for(r.members());
     let limits = clout::planner::Limits {
         budget: u128::MAX,
@@ -99,6 +102,9 @@ fn explain(rule: &CompiledRule, args: &ReportArgs) -> String {
         args.budget as f64,
         bytes(args.memory)
     );
+    for c in &game.settled {
+        let _ = writeln!(out, "  settled before planning: `{}`, {}", c.text, c.why);
+    }
     match clout::planner::plan_within(r, clout::engine::Scope::All, &limits) {
         Ok(plan) => {
             for e in clout::Engine::ALL {
@@ -383,10 +389,25 @@ fn text_report(input: &Input, rule: &CompiledRule, report: &Report) -> String {
 or no; an abstention or absence counts as not yes), where each condition reduces to the quota shown."
         );
     }
+    settled_text(&mut out, report);
     extras_text(&mut out, input, rule, report);
     rounding_text(&mut out, report);
     let _ = writeln!(out, "\n{MODEL}\n{CAUTION}");
     out
+}
+
+/// The conditions settled before counting (`Report::settled_conditions`).
+fn settled_text(out: &mut String, report: &Report) {
+    if report.settled_conditions.is_empty() {
+        return;
+    }
+    let _ = writeln!(
+        out,
+        "\nSettled before counting (the two-state figures count the rule without these):"
+    );
+    for c in &report.settled_conditions {
+        let _ = writeln!(out, "  `{}`: {}.", c.text, c.why);
+    }
 }
 
 /// An attribute's column heading: its name, and for amounts with decimals

@@ -150,3 +150,66 @@ pub(crate) fn four_state_rules() -> impl proptest::strategy::Strategy<Value = Ru
             four_state_rule(seats, form, plain).unwrap()
         })
 }
+
+/// Random rules of 1 to 9 members over seats and head count: one to four
+/// conditions, each plain (any quota from 0 to one past the total, so
+/// constant conditions occur) or four-state (any monotone coefficients and
+/// bound), joined by AND, by OR, or as (c0 and c1) or the rest. For the
+/// proptests of the two-state reduction and of the voting model.
+#[cfg(test)]
+pub(crate) fn mixed_rules() -> impl proptest::strategy::Strategy<Value = Rule<Vec<u64>>> {
+    use crate::model::atom::Condition;
+    use proptest::prelude::*;
+    let condition = (
+        any::<bool>(),
+        0u16..2,
+        0u64..40,
+        1i32..=3,
+        -2i32..=3,
+        -2i32..=3,
+        -12i128..=14,
+    );
+    (
+        1usize..=9,
+        prop::collection::vec(0u64..6, 9),
+        prop::collection::vec(condition, 1..=4),
+        0u8..3,
+    )
+        .prop_map(|(n, seats, conditions, shape)| {
+            let seats = &seats[..n];
+            let weights = seats_and_heads(seats);
+            let totals = [seats.iter().sum::<u64>(), n as u64];
+            let conditions: Vec<Condition> = conditions
+                .into_iter()
+                .map(|(plain, attribute, q, yes, no, abstain, bound)| {
+                    if plain {
+                        let total = totals[usize::from(attribute)];
+                        Condition::Yes(Atom {
+                            attribute,
+                            quota: q % (total + 2),
+                        })
+                    } else {
+                        Condition::Linear(Linear {
+                            attribute,
+                            yes,
+                            no: no.min(yes),
+                            abstain: abstain.min(yes),
+                            bound,
+                        })
+                    }
+                })
+                .collect();
+            let k = conditions.len() as u16;
+            let mut formula: Vec<Node> = (0..k).map(Node::Atom).collect();
+            match (shape, k) {
+                (_, 1) => {}
+                (0, _) => formula.push(Node::All(k)),
+                (1, _) | (_, 2) => formula.push(Node::Any(k)),
+                _ => {
+                    formula.insert(2, Node::All(2));
+                    formula.push(Node::Any(k - 1));
+                }
+            }
+            Rule::with_conditions(n, weights, &conditions, &formula).unwrap()
+        })
+}

@@ -19,6 +19,7 @@
 mod approx;
 mod extras;
 pub mod rounding;
+mod settle;
 
 use clout_dsl::exact::{self, Power};
 use clout_dsl::{CompiledRule, RuleFile};
@@ -28,6 +29,7 @@ use crate::failure::{Failure, FailureKind};
 use crate::Engine;
 
 pub use approx::Approximation;
+pub use settle::{two_state_game, SettledCondition, TwoStateGame};
 
 /// The model every figure assumes, in one line.
 pub const MODEL: &str = "Model: each member votes yes or no independently with equal chance; \
@@ -124,6 +126,9 @@ pub struct Report {
     pub smallest_winning_coalition: Option<usize>,
     /// Every condition with its exact integer quota.
     pub conditions: Vec<ConditionReport>,
+    /// Conditions every two-state ballot meets, or none meets, settled
+    /// before counting (the figures count the rule without them).
+    pub settled_conditions: Vec<SettledCondition>,
     /// The exact engine's name, or `approximation`.
     pub engine: String,
     /// The exact engine's estimated steps (not in JSON: it depends on the estimate's version).
@@ -225,6 +230,8 @@ pub struct AttendanceReport {
 /// Decides how to compute: exact counting when an engine fits, otherwise
 /// approximation (unless `options.exact` or a forced engine forbids it).
 pub fn plan(rule: &CompiledRule, options: &Options) -> Result<Method, Failure> {
+    let game = two_state_game(rule)?;
+    let rule = game.rule.as_ref();
     let r = &rule.rule;
     let planned = match options.engine {
         Some(engine) => clout_core::engine::cost(r, engine).and_then(|cost| {
@@ -275,21 +282,25 @@ pub fn build(
 ) -> Result<Report, Failure> {
     check_options(options)?;
     let extras = extras::Extras::of(rule, options)?;
+    let game = two_state_game(rule)?;
+    let counted = game.rule.as_ref();
     let figures = match method {
-        Method::Exact { engine, .. } => match exact::power(&rule.rule, *engine) {
+        Method::Exact { engine, .. } => match exact::power(&counted.rule, *engine) {
             Ok(p) => Figures::Exact(p),
-            Err(e) => match fallback(rule, options, e)? {
+            Err(e) => match fallback(counted, options, e)? {
                 Method::Approximate { reason } => {
-                    Figures::Approximate(approx::approximate(rule, options)?, reason)
+                    Figures::Approximate(approx::approximate(counted, options)?, reason)
                 }
                 Method::Exact { .. } => return Err(core_failure(&rule.name, e)),
             },
         },
         Method::Approximate { reason } => {
-            Figures::Approximate(approx::approximate(rule, options)?, reason.clone())
+            Figures::Approximate(approx::approximate(counted, options)?, reason.clone())
         }
     };
-    Ok(assemble(file, rule, &figures, &extras))
+    let mut report = assemble(file, rule, &figures, &extras);
+    report.settled_conditions = game.settled;
+    Ok(report)
 }
 
 fn check_options(options: &Options) -> Result<(), Failure> {
@@ -425,6 +436,7 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
         minimal_blocking_coalitions: None,
         smallest_winning_coalition: None,
         conditions,
+        settled_conditions: Vec::new(),
         engine: String::new(),
         steps: None,
         penrose_method: None,

@@ -29,4 +29,4 @@ pub use ballot::{Ballot, Vote};
 pub use coalition::{Coalition, Members};
 pub use count::{Count1024, Counter, Wide};
 pub use error::Error;
-pub use rule::{Node, Rule};
+pub use rule::{Node, Rule, TwoState};

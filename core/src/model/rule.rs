@@ -337,6 +337,153 @@ impl<W: AsRef<[u64]>> Rule<W> {
     }
 }
 
+/// A rule with the conditions that every two-state ballot meets, or none
+/// meets, taken out: see [`Rule::two_state`].
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct TwoState<W: AsRef<[u64]>> {
+    /// The same two-state game without its constant conditions; `None` when
+    /// the whole formula is constant (see `constant`).
+    pub rule: Option<Rule<W>>,
+    /// Each constant condition of the original rule: (atom index, whether
+    /// every two-state ballot meets it).
+    pub settled: heapless::Vec<(usize, bool), MAX_ATOMS>,
+    /// For each atom of `rule`, its index in the original rule.
+    pub kept: heapless::Vec<usize, MAX_ATOMS>,
+    /// `Some(outcome)` when every two-state ballot has this outcome.
+    pub constant: Option<bool>,
+}
+
+impl<W: AsRef<[u64]> + Clone> Rule<W> {
+    /// Takes out the conditions that are constant on two-state ballots
+    /// (every member present, yes or no): quota 0 (met by every ballot, e.g.
+    /// a participation quorum, since everyone is present) or above the
+    /// attribute's total (met by none). An AND loses its constant-true parts
+    /// and becomes false with a constant-false one; an OR the other way
+    /// round; an operator left with one part becomes that part. The result
+    /// decides every two-state ballot exactly as `self` does, and keeps the
+    /// four-state forms of the conditions it keeps. O(atoms + nodes), no heap.
+    pub fn two_state(&self) -> Result<TwoState<W>, Error> {
+        let mut settled = heapless::Vec::new();
+        for (i, a) in self.atoms.iter().enumerate() {
+            let total = self.total(usize::from(a.attribute));
+            if a.quota == 0 || a.quota > total {
+                // One entry per atom at most: same capacity as the atoms.
+                let _ = settled.push((i, a.quota == 0));
+            }
+        }
+        let constant_atom = |i: usize| settled.iter().find(|(k, _)| *k == i).map(|&(_, v)| v);
+        // Each pending value: a constant, or an expression whose nodes are
+        // out[start..] up to the next pending expression.
+        #[derive(Clone, Copy)]
+        enum Part {
+            Constant(bool),
+            Expression(usize),
+        }
+        let mut stack: heapless::Vec<Part, MAX_NODES> = heapless::Vec::new();
+        let mut out: heapless::Vec<Node, MAX_NODES> = heapless::Vec::new();
+        let malformed = Error::MalformedFormula { node: 0 };
+        for node in &self.formula {
+            match *node {
+                Node::Atom(i) => {
+                    let part = match constant_atom(usize::from(i)) {
+                        Some(v) => Part::Constant(v),
+                        None => {
+                            let start = out.len();
+                            out.push(*node).map_err(|_| malformed)?;
+                            Part::Expression(start)
+                        }
+                    };
+                    stack.push(part).map_err(|_| malformed)?;
+                }
+                Node::All(k) | Node::Any(k) => {
+                    let all = matches!(node, Node::All(_));
+                    let below = stack.len().checked_sub(usize::from(k)).ok_or(malformed)?;
+                    let parts = stack.get(below..).unwrap_or(&[]);
+                    // The deciding constant: false for AND, true for OR.
+                    let decided = parts.iter().any(|p| matches!(p, Part::Constant(v) if *v != all));
+                    let first = parts.iter().find_map(|p| match p {
+                        Part::Expression(s) => Some(*s),
+                        Part::Constant(_) => None,
+                    });
+                    let expressions = parts.iter().filter(|p| matches!(p, Part::Expression(_))).count();
+                    stack.truncate(below);
+                    let part = match (decided, first) {
+                        (true, _) => {
+                            out.truncate(first.unwrap_or(out.len()));
+                            Part::Constant(!all)
+                        }
+                        (false, None) => Part::Constant(all),
+                        (false, Some(start)) => {
+                            if expressions > 1 {
+                                // expressions <= k, a u16.
+                                let n = u16::try_from(expressions).map_err(|_| malformed)?;
+                                out.push(if all { Node::All(n) } else { Node::Any(n) })
+                                    .map_err(|_| malformed)?;
+                            }
+                            Part::Expression(start)
+                        }
+                    };
+                    stack.push(part).map_err(|_| malformed)?;
+                }
+            }
+        }
+        match stack.as_slice() {
+            [Part::Constant(v)] => Ok(TwoState {
+                rule: None,
+                settled,
+                kept: heapless::Vec::new(),
+                constant: Some(*v),
+            }),
+            [Part::Expression(_)] => {
+                if settled.is_empty() {
+                    return Ok(TwoState {
+                        rule: Some(self.clone()),
+                        settled,
+                        kept: (0..self.atoms.len()).collect(),
+                        constant: None,
+                    });
+                }
+                // Renumber the atoms that remain, in order of first use.
+                let mut map: heapless::Vec<Option<u16>, MAX_ATOMS> = heapless::Vec::new();
+                for _ in &self.atoms {
+                    let _ = map.push(None);
+                }
+                let mut atoms: heapless::Vec<Atom, MAX_ATOMS> = heapless::Vec::new();
+                let mut linear: heapless::Vec<Option<Linear>, MAX_ATOMS> = heapless::Vec::new();
+                let mut kept: heapless::Vec<usize, MAX_ATOMS> = heapless::Vec::new();
+                for node in out.iter_mut() {
+                    if let Node::Atom(i) = node {
+                        let old = usize::from(*i);
+                        let slot = map.get_mut(old).ok_or(malformed)?;
+                        let new = match *slot {
+                            Some(n) => n,
+                            None => {
+                                let n = u16::try_from(atoms.len()).map_err(|_| malformed)?;
+                                atoms.push(*self.atoms.get(old).ok_or(malformed)?)
+                                    .map_err(|_| malformed)?;
+                                linear.push(self.linear(old)).map_err(|_| malformed)?;
+                                kept.push(old).map_err(|_| malformed)?;
+                                *slot = Some(n);
+                                n
+                            }
+                        };
+                        *i = new;
+                    }
+                }
+                let mut rule = Rule::new(self.members, self.weights.clone(), &atoms, &out)?;
+                rule.linear = linear;
+                Ok(TwoState {
+                    rule: Some(rule),
+                    settled,
+                    kept,
+                    constant: None,
+                })
+            }
+            _ => Err(malformed),
+        }
+    }
+}
+
 /// Postfix evaluation with a one-bit-per-value stack in a `u128`.
 fn eval_postfix(formula: &[Node], mut atom_met: impl FnMut(usize) -> bool) -> bool {
     let mut stack: u128 = 0;
@@ -474,6 +621,77 @@ mod tests {
             Rule::weighted(1, &huge[..]).unwrap_err(),
             Error::WeightSumOverflow { attribute: 0 }
         );
+    }
+
+    #[test]
+    fn two_state_settles_a_participation_quorum() {
+        use crate::model::atom::Condition;
+        // tokens present >= 20% and tokens yes > tokens no, tokens 5, 3, 2:
+        // everyone is present on a two-state ballot, so the quorum (quota 0)
+        // goes and "more yes than no" (Y >= 6) is left alone.
+        let quorum = Linear {
+            attribute: 0,
+            yes: 1,
+            no: 1,
+            abstain: 1,
+            bound: 2,
+        };
+        let majority = Linear {
+            attribute: 0,
+            yes: 1,
+            no: -1,
+            abstain: 0,
+            bound: 1,
+        };
+        let rule = Rule::with_conditions(
+            3,
+            [5u64, 3, 2],
+            &[Condition::Linear(quorum), Condition::Linear(majority)],
+            &[Node::Atom(0), Node::Atom(1), Node::All(2)],
+        )
+        .unwrap();
+        let two = rule.two_state().unwrap();
+        assert_eq!(two.settled.as_slice(), &[(0, true)]);
+        assert_eq!(two.constant, None);
+        let reduced = two.rule.unwrap();
+        assert_eq!(reduced.single_threshold(), Some((0, 6)));
+        assert_eq!(reduced.linear(0), Some(majority));
+        // OR with a condition nobody meets, and with one everybody meets.
+        let never = Atom { attribute: 0, quota: 11 };
+        let always = Atom { attribute: 0, quota: 0 };
+        let or = [Node::Atom(0), Node::Atom(1), Node::Any(2)];
+        let r = Rule::new(3, [5u64, 3, 2], &[never, Atom { attribute: 0, quota: 7 }], &or).unwrap();
+        let two = r.two_state().unwrap();
+        assert_eq!(two.rule.unwrap().single_threshold(), Some((0, 7)));
+        let r = Rule::new(3, [5u64, 3, 2], &[always, Atom { attribute: 0, quota: 7 }], &or).unwrap();
+        let two = r.two_state().unwrap();
+        assert_eq!((two.rule, two.constant), (None, Some(true)));
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig { cases: 400, ..Default::default() })]
+        /// The reduced rule decides every two-state ballot as the original does.
+        #[test]
+        fn two_state_keeps_every_two_state_outcome(rule in crate::fixtures::mixed_rules()) {
+            let two = rule.two_state().unwrap();
+            for (i, holds) in two.settled.iter().copied() {
+                let a = rule.atoms()[i];
+                proptest::prop_assert_eq!(holds, a.quota == 0);
+            }
+            for bits in 0u64..(1 << rule.members()) {
+                let c = Coalition::<1>::from_words([bits]);
+                let want = rule.passes(&c).unwrap();
+                let got = match (&two.rule, two.constant) {
+                    (Some(r), None) => r.passes(&c).unwrap(),
+                    (None, Some(v)) => v,
+                    _ => unreachable!(),
+                };
+                proptest::prop_assert_eq!(want, got, "coalition {:b}", bits);
+            }
+            if let Some(r) = &two.rule {
+                proptest::prop_assert!(r.atoms().iter().all(|a| a.quota > 0 && a.quota <= r.total(usize::from(a.attribute))));
+            }
+        }
     }
 
     #[test]
