@@ -113,6 +113,13 @@ export interface ConditionReport {
   total: string;
 }
 
+/** A condition every two-state ballot meets (`always`), or none meets, settled before counting. */
+export interface SettledCondition {
+  text: string;
+  always: boolean;
+  why: string;
+}
+
 /** The power report: the JSON of `clout report --format json`. */
 export interface Report {
   rule: string;
@@ -130,6 +137,7 @@ export interface Report {
   minimal_blocking_coalitions: string | null;
   smallest_winning_coalition: number | null;
   conditions: ConditionReport[];
+  settled_conditions: SettledCondition[];
   engine: string;
   penrose_method: string | null;
   shapley_shubik_method: string | null;
