@@ -123,6 +123,6 @@ pub use engine::threads;
 pub use engine::{Engine, MemberCounts, RuleCounts};
 pub use model::{count, limits, quota};
 pub use model::{
-    Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, TwoState, Vote,
-    Wide,
+    Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, TwoState,
+    Vote, Wide,
 };

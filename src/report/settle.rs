@@ -79,7 +79,7 @@ pub fn two_state_game(rule: &CompiledRule) -> Result<TwoStateGame<'_>, Failure> 
     match (two.rule, two.constant) {
         (Some(kept_rule), _) => {
             reduced.conditions = two.kept.iter().map(|&i| rule.conditions[i].clone()).collect();
-            reduced.exact = two.kept.iter().map(|&i| rule.exact[i].clone()).collect();
+            reduced.exact = two.kept.iter().map(|&i| rule.exact[i]).collect();
             reduced.rule = kept_rule;
         }
         (None, constant) => {
@@ -87,7 +87,8 @@ pub fn two_state_game(rule: &CompiledRule) -> Result<TwoStateGame<'_>, Failure> 
             // with quota 0 (always) or 1 (never) is the same game.
             let quota = u64::from(constant != Some(true));
             let n = r.members();
-            reduced.rule = clout_core::Rule::weighted(quota, vec![0; n]).map_err(|e| core_failure(&rule.name, e))?;
+            reduced.rule =
+                clout_core::Rule::weighted(quota, vec![0; n]).map_err(|e| core_failure(&rule.name, e))?;
             reduced.attributes = vec![rule.attributes[0].clone()];
             reduced.conditions = vec![rule.conditions[0].clone()];
             reduced.exact = vec![None];

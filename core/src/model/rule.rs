@@ -459,7 +459,8 @@ impl<W: AsRef<[u64]> + Clone> Rule<W> {
                             Some(n) => n,
                             None => {
                                 let n = u16::try_from(atoms.len()).map_err(|_| malformed)?;
-                                atoms.push(*self.atoms.get(old).ok_or(malformed)?)
+                                atoms
+                                    .push(*self.atoms.get(old).ok_or(malformed)?)
                                     .map_err(|_| malformed)?;
                                 linear.push(self.linear(old)).map_err(|_| malformed)?;
                                 kept.push(old).map_err(|_| malformed)?;
@@ -657,13 +658,43 @@ mod tests {
         assert_eq!(reduced.single_threshold(), Some((0, 6)));
         assert_eq!(reduced.linear(0), Some(majority));
         // OR with a condition nobody meets, and with one everybody meets.
-        let never = Atom { attribute: 0, quota: 11 };
-        let always = Atom { attribute: 0, quota: 0 };
+        let never = Atom {
+            attribute: 0,
+            quota: 11,
+        };
+        let always = Atom {
+            attribute: 0,
+            quota: 0,
+        };
         let or = [Node::Atom(0), Node::Atom(1), Node::Any(2)];
-        let r = Rule::new(3, [5u64, 3, 2], &[never, Atom { attribute: 0, quota: 7 }], &or).unwrap();
+        let r = Rule::new(
+            3,
+            [5u64, 3, 2],
+            &[
+                never,
+                Atom {
+                    attribute: 0,
+                    quota: 7,
+                },
+            ],
+            &or,
+        )
+        .unwrap();
         let two = r.two_state().unwrap();
         assert_eq!(two.rule.unwrap().single_threshold(), Some((0, 7)));
-        let r = Rule::new(3, [5u64, 3, 2], &[always, Atom { attribute: 0, quota: 7 }], &or).unwrap();
+        let r = Rule::new(
+            3,
+            [5u64, 3, 2],
+            &[
+                always,
+                Atom {
+                    attribute: 0,
+                    quota: 7,
+                },
+            ],
+            &or,
+        )
+        .unwrap();
         let two = r.two_state().unwrap();
         assert_eq!((two.rule, two.constant), (None, Some(true)));
     }
