@@ -117,6 +117,8 @@ pub use device::image::{ImageError, ImageInfo};
 #[cfg(feature = "alloc")]
 pub use engine::approx;
 #[cfg(feature = "alloc")]
+pub use engine::chances;
+#[cfg(feature = "alloc")]
 pub use engine::ternary;
 #[cfg(feature = "std")]
 pub use engine::threads;

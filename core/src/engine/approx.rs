@@ -89,13 +89,13 @@ pub struct SampledPower {
 }
 
 /// Samples per batch; batches are the unit of seeding and of work sharing.
-const BATCH: u64 = 4096;
+pub(crate) const BATCH: u64 = 4096;
 /// Batches per round; convergence is checked between rounds.
 const ROUND: u64 = 16;
 
 /// wyrand (Wang Yi's public-domain generator): fast, passes BigCrush.
 #[derive(Clone, Copy)]
-struct Rng(u64);
+pub(crate) struct Rng(u64);
 
 impl Rng {
     fn new(seed: u64, stream: u64) -> Self {
@@ -103,7 +103,7 @@ impl Rng {
         r.next();
         r
     }
-    fn next(&mut self) -> u64 {
+    pub(crate) fn next(&mut self) -> u64 {
         self.0 = self.0.wrapping_add(0xa076_1d64_78bd_642f);
         let t = u128::from(self.0) * u128::from(self.0 ^ 0xe703_7ed1_a0b4_28db);
         ((t >> 64) as u64) ^ (t as u64)
@@ -180,7 +180,7 @@ fn wilson(hits: u64, n: u64, z: f64) -> Estimate {
 
 /// Runs batches until every member's interval meets the tolerance.
 /// `batch(rng, counts)` adds one batch's hits into `counts`.
-fn sample_rounds<F>(n: usize, s: &Sampling, batch: F) -> SampledPower
+pub(crate) fn sample_rounds<F>(n: usize, s: &Sampling, batch: F) -> SampledPower
 where
     F: Fn(&mut Rng, &mut [u64]) + Sync,
 {

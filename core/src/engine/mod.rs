@@ -34,6 +34,8 @@ mod registry;
 #[cfg(feature = "alloc")]
 pub mod approx;
 #[cfg(feature = "alloc")]
+pub mod chances;
+#[cfg(feature = "alloc")]
 pub mod diagram;
 #[cfg(feature = "alloc")]
 pub(crate) mod residue;
