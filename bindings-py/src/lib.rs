@@ -315,7 +315,8 @@ impl RuleFile {
     /// Every member's swings and power indices and the rule's properties:
     /// the dict `clout report --format json` prints.
     #[pyo3(signature = (rule = None, *, engine = None, exact = false, budget = None, memory = None,
-                        tolerance = 0.001, seed = 1, ternary = false, attendance = None))]
+                        tolerance = 0.001, seed = 1, ternary = false, attendance = None,
+                        turnout = None))]
     #[allow(clippy::too_many_arguments)] // Python keyword arguments
     fn report<'py>(
         &self,
@@ -329,6 +330,7 @@ impl RuleFile {
         seed: u64,
         ternary: bool,
         attendance: Option<f64>,
+        turnout: Option<f64>,
     ) -> PyResult<Bound<'py, PyAny>> {
         let r = self.rule(py, rule)?;
         let defaults = Options::default();
@@ -349,6 +351,7 @@ impl RuleFile {
             seed,
             ternary,
             attendance,
+            model: turnout.map(clout::report::model::VotingModel::Turnout),
         };
         let method = detached(py, |_| report::plan(r, &options))?;
         py.check_signals()?;

@@ -193,6 +193,9 @@ pub fn report(value: Value) -> Result<(Option<String>, Options), Failure> {
         seed: f.whole("seed")?.unwrap_or(defaults.seed),
         ternary: f.boolean("ternary")?.unwrap_or(defaults.ternary),
         attendance: f.number("attendance")?,
+        model: f
+            .number("turnout")?
+            .map(clout::report::model::VotingModel::Turnout),
     };
     f.finish()?;
     Ok((rule, options))

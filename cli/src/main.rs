@@ -120,6 +120,15 @@ struct ReportArgs {
     /// and then votes yes or no with equal chance.
     #[arg(long, value_name = "P")]
     attendance: Option<f64>,
+    /// Also give each member's chance of deciding the outcome, and the chances of passage
+    /// and of a failed quorum, when every member is present with chance P and then votes
+    /// yes or no with equal chance.
+    #[arg(long, value_name = "P", conflicts_with = "chances")]
+    turnout: Option<f64>,
+    /// Like --turnout, with each member's own chances from a CSV or JSON table with the
+    /// header member,present,yes,abstain.
+    #[arg(long, value_name = "FILE")]
+    chances: Option<PathBuf>,
 }
 
 /// A byte count such as `2GiB`, `512MiB`, `64KiB` or `1000000`.

@@ -10,6 +10,7 @@
 
 use std::fmt::Write;
 
+use clout::report::model::{self, VotingModel};
 use clout::report::{self, bytes, interchangeable, reason, MemberReport, Method, Options, Report};
 use clout_dsl::exact;
 use clout_dsl::{AttributeKind, CompiledRule};
@@ -34,6 +35,7 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
         seed: args.seed,
         ternary: args.ternary,
         attendance: args.attendance,
+        model: voting_model(&input, args)?,
     };
     let explained = if args.explain {
         explain(rule, args)
@@ -58,7 +60,7 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
     let report = with_progress(&label, || report::build(&input.file, rule, &method, &options))
         .map_err(Failure::from)?;
     let out = match args.format {
-        Format::Text if report.approximate => approximate_text(&input, &report),
+        Format::Text if report.approximate => approximate_text(&input, rule, &report),
         Format::Text => text_report(&input, rule, &report),
         Format::Json => json(&report),
         Format::Csv => csv_report(&report),
@@ -73,6 +75,97 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
     }
     Ok(out)
 }
+
+/// The voting model of `--turnout` or `--chances`, if either is given.
+fn voting_model(input: &Input, args: &ReportArgs) -> Result<Option<VotingModel>, Failure> {
+    if let Some(p) = args.turnout {
+        return Ok(Some(VotingModel::Turnout(p)));
+    }
+    let Some(path) = &args.chances else {
+        return Ok(None);
+    };
+    let shown = path.display().to_string();
+    let bytes = std::fs::File::open(path)
+        .and_then(|f| crate::input::read_bounded(f, clout_dsl::data::MAX_TABLE_LEN))
+        .map_err(|e| Failure::input(format!("cannot read `{shown}`: {e}")))?;
+    let chances = model::read_chances(&input.file, &shown, &bytes).map_err(|errors| {
+        let mut text = clout_dsl::render_all(&errors, &shown, "");
+        let n = clout_dsl::error_count(&errors);
+        text.push_str(&format!(
+            "{n} error{} in {shown}\n",
+            if n == 1 { "" } else { "s" }
+        ));
+        Failure::rendered(text)
+    })?;
+    Ok(Some(VotingModel::Chances { file: shown, chances }))
+}
+
+/// The voting model's figures (`--turnout`, `--chances`), when asked for.
+fn model_text(out: &mut String, input: &Input, rule: &CompiledRule, report: &Report) {
+    let Some(m) = &report.voting_model else { return };
+    let _ = writeln!(out, "\nUnder the voting model ({}):", m.method);
+    let mut table = Table::new(vec![
+        ("member".to_string(), Align::Left),
+        ("decisive probability".to_string(), Align::Right),
+        ("share".to_string(), Align::Right),
+        ("penrose (a priori)".to_string(), Align::Right),
+    ]);
+    for members in &interchangeable(rule) {
+        let x = &report.members[members[0]];
+        let d = x.decisive_probability.unwrap_or_default();
+        let hw = x.decisive_probability_half_width.flatten();
+        table.push(vec![
+            label(input, members),
+            match hw {
+                Some(h) => resolved(d, h, m.samples.unwrap_or(0)),
+                None => text::index(d),
+            },
+            text::index(x.decisive_share.unwrap_or_default()),
+            text::index(x.penrose),
+        ]);
+    }
+    out.push_str(&table.render());
+    let pm = |v: f64, h: Option<f64>| match h {
+        Some(h) => format!("{v:.6} ±{h:.1e}"),
+        None => format!("{v:.6}"),
+    };
+    let _ = writeln!(
+        out,
+        "probability of passage         {}",
+        pm(m.passage_probability, m.passage_probability_half_width)
+    );
+    let _ =
+        writeln!(
+        out,
+        "probability of a failed quorum {} (those present could not pass the motion even if all voted yes)",
+        pm(m.quorum_failure_probability, m.quorum_failure_probability_half_width)
+    );
+    if let Some(b) = m.rounding_bound {
+        let _ = writeln!(
+            out,
+            "every figure above is within a relative {b:.1e} of the exact value (floating-point rounding)"
+        );
+    }
+}
+
+/// An estimate with its half-width, or "< upper" when the half-width is
+/// larger than the estimate (below resolution), with the samples that
+/// would resolve it: n >= z^2 (1 - p) / p makes the half-width about p
+/// (normal approximation to the binomial; common practice).
+pub fn resolved(value: f64, half_width: f64, samples: u64) -> String {
+    if half_width <= value || samples == 0 {
+        return format!("{} ±{:.1e}", text::index(value), half_width);
+    }
+    let upper = (value + half_width).min(1.0);
+    let p = if value > 0.0 { value } else { upper };
+    let needed = (1.96f64 * 1.96 * (1.0 - p) / p).ceil();
+    format!("< {upper:.2e} (about {needed:.0e} samples to resolve)")
+}
+
+/// The note on four-state conditions in two-state figures.
+const FOUR_STATE: &str =
+    "Four-state conditions: the figures above are for two-state ballots (every member present, yes \
+or no; an abstention or absence counts as not yes), where each condition reduces to the quota shown.";
 
 /// Pretty JSON with a final newline.
 pub fn json(value: &impl serde::Serialize) -> String {
@@ -202,6 +295,9 @@ pub fn label(input: &Input, members: &[usize]) -> String {
 fn heading(out: &mut String, input: &Input, report: &Report) {
     let _ = writeln!(out, "{}: rule `{}`", input.title(), report.rule);
     let _ = writeln!(out, "  {}\n", report.text);
+    if let Some(m) = &report.voting_model {
+        let _ = writeln!(out, "{}\n", m.description);
+    }
 }
 
 fn text_report(input: &Input, rule: &CompiledRule, report: &Report) -> String {
@@ -383,14 +479,11 @@ fn text_report(input: &Input, rule: &CompiledRule, report: &Report) -> String {
         );
     }
     if r.has_linear() {
-        let _ = writeln!(
-            out,
-            "\nFour-state conditions: the figures above are for two-state ballots (every member present, yes \
-or no; an abstention or absence counts as not yes), where each condition reduces to the quota shown."
-        );
+        let _ = writeln!(out, "\n{FOUR_STATE}");
     }
     settled_text(&mut out, report);
     extras_text(&mut out, input, rule, report);
+    model_text(&mut out, input, rule, report);
     rounding_text(&mut out, report);
     let _ = writeln!(out, "\n{MODEL}\n{CAUTION}");
     out
@@ -516,7 +609,7 @@ fn pm(value: f64, half_width: Option<f64>) -> String {
     format!("{} ±{:.1e}", text::index(value), half_width.unwrap_or_default())
 }
 
-fn approximate_text(input: &Input, report: &Report) -> String {
+fn approximate_text(input: &Input, rule: &CompiledRule, report: &Report) -> String {
     let file = &input.file;
     let mut out = String::new();
     heading(&mut out, input, report);
@@ -552,6 +645,22 @@ fn approximate_text(input: &Input, report: &Report) -> String {
         "banzhaf           the Penrose measures normalized; the interval covers every combination of theirs"
     );
     let _ = writeln!(out, "shapley-shubik    {}", method(&report.shapley_shubik_method));
+    for c in &report.conditions {
+        let _ = writeln!(
+            out,
+            "condition         {}  means  {} >= {} of {}",
+            c.text,
+            c.attribute,
+            text::thousands(&c.quota),
+            text::thousands(&c.total)
+        );
+    }
+    if rule.rule.has_linear() {
+        let _ = writeln!(out, "\n{FOUR_STATE}");
+    }
+    settled_text(&mut out, report);
+    extras_text(&mut out, input, rule, report);
+    model_text(&mut out, input, rule, report);
     rounding_text(&mut out, report);
     let _ = writeln!(out, "\n{MODEL}\n{CAUTION}");
     out

@@ -18,6 +18,7 @@
 
 mod approx;
 mod extras;
+pub mod model;
 pub mod rounding;
 mod settle;
 
@@ -58,6 +59,8 @@ pub struct Options {
     pub ternary: bool,
     /// Also the probability of passage when each member attends with this chance.
     pub attendance: Option<f64>,
+    /// Also the figures under this voting model (`--turnout`, `--chances`).
+    pub model: Option<model::VotingModel>,
 }
 
 impl Default for Options {
@@ -71,6 +74,7 @@ impl Default for Options {
             seed: 1,
             ternary: false,
             attendance: None,
+            model: None,
         }
     }
 }
@@ -146,6 +150,9 @@ pub struct Report {
     /// What rounding exact amounts to a unit can change (null when no
     /// condition is on rounded weights).
     pub rounding: Option<rounding::Rounding>,
+    /// Figures under the voting model (`--turnout`, `--chances`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub voting_model: Option<model::ModelReport>,
     /// The voting model of every figure.
     pub model: String,
     /// The legal caution.
@@ -194,6 +201,16 @@ pub struct MemberReport {
     /// Ternary Banzhaf measure (`--ternary`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub ternary_banzhaf: Option<f64>,
+    /// Probability that the member's vote decides the outcome under the
+    /// voting model (`--turnout`, `--chances`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub decisive_probability: Option<f64>,
+    /// Its half-width when estimated (null when exact).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub decisive_probability_half_width: Option<Option<f64>>,
+    /// The member's share of all members' decisive probabilities.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub decisive_share: Option<f64>,
 }
 
 /// An exact fraction, numerator and denominator as decimal strings.
@@ -300,6 +317,16 @@ pub fn build(
     };
     let mut report = assemble(file, rule, &figures, &extras);
     report.settled_conditions = game.settled;
+    if let Some(m) = &options.model {
+        let (figures, decisive) = model::compute(rule, m, options.seed, options.tolerance)?;
+        let total: f64 = decisive.iter().map(|d| d.0).sum();
+        for (member, (d, half_width)) in report.members.iter_mut().zip(decisive) {
+            member.decisive_probability = Some(d);
+            member.decisive_probability_half_width = Some(half_width);
+            member.decisive_share = Some(if total > 0.0 { d / total } else { 0.0 });
+        }
+        report.voting_model = Some(figures);
+    }
     Ok(report)
 }
 
@@ -309,6 +336,14 @@ fn check_options(options: &Options) -> Result<(), Failure> {
             return Err(
                 Failure::input(format!("attendance {p} is not a chance between 0 and 1"))
                     .with_hint("e.g. --attendance 0.8"),
+            );
+        }
+    }
+    if let Some(model::VotingModel::Turnout(p)) = &options.model {
+        if !(0.0..=1.0).contains(p) {
+            return Err(
+                Failure::input(format!("turnout {p} is not a chance between 0 and 1"))
+                    .with_hint("e.g. --turnout 0.15"),
             );
         }
     }
@@ -369,6 +404,9 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
                         banzhaf_half_width: None,
                         shapley_shubik_half_width: None,
                         ternary_banzhaf: None,
+                        decisive_probability: None,
+                        decisive_probability_half_width: None,
+                        decisive_share: None,
                     }
                 }
                 Figures::Approximate(a, _) => {
@@ -393,6 +431,9 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
                         banzhaf_half_width: Some(a.banzhaf[i].half_width),
                         shapley_shubik_half_width: Some(a.shapley[i].half_width),
                         ternary_banzhaf: None,
+                        decisive_probability: None,
+                        decisive_probability_half_width: None,
+                        decisive_share: None,
                     }
                 }
             };
@@ -444,6 +485,7 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
         confidence: None,
         attendance,
         rounding: None,
+        voting_model: None,
         model: MODEL.to_string(),
         caution: CAUTION.to_string(),
     };

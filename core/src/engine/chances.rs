@@ -371,44 +371,62 @@ pub fn exact_model<W: AsRef<[u64]>>(
     let mut per_type = vec![0.0f64; reps.len()];
     let mut passage = 0.0;
     let mut first = true;
-    leave_one_out(&shared, &reps, &enc, &votes, max_states, &mut widest, &mut |rep, others| {
-        let t = type_of[rep];
-        let m = enc.moves[rep];
-        let mut decisive = 0.0;
-        let mut pass = 0.0;
-        let p = votes[rep];
-        for &(key, q) in others {
-            let with = |shift: i128, values: &mut [i128]| {
-                enc.decode(key + shift, values);
-                forms.passes(rule, values)
-            };
-            let yes = with(m[0], &mut values);
-            let no = with(m[1], &mut values);
-            if yes && !no {
-                decisive += q;
-            }
-            if first {
-                // Passage: the member votes too.
-                let abstain = with(m[2], &mut values);
-                let absent = with(0, &mut values);
-                let mut c = 0.0;
-                for (passes, pv) in [(yes, p[0]), (no, p[1]), (abstain, p[2]), (absent, p[3])] {
-                    if passes {
-                        c += pv;
-                    }
+    leave_one_out(
+        &shared,
+        &reps,
+        &enc,
+        &votes,
+        max_states,
+        &mut widest,
+        &mut |rep, others| {
+            let t = type_of[rep];
+            let m = enc.moves[rep];
+            let mut decisive = 0.0;
+            let mut pass = 0.0;
+            let p = votes[rep];
+            for &(key, q) in others {
+                let with = |shift: i128, values: &mut [i128]| {
+                    enc.decode(key + shift, values);
+                    forms.passes(rule, values)
+                };
+                let yes = with(m[0], &mut values);
+                let no = with(m[1], &mut values);
+                if yes && !no {
+                    decisive += q;
                 }
-                pass += q * c;
+                if first {
+                    // Passage: the member votes too.
+                    let abstain = with(m[2], &mut values);
+                    let absent = with(0, &mut values);
+                    let mut c = 0.0;
+                    for (passes, pv) in [(yes, p[0]), (no, p[1]), (abstain, p[2]), (absent, p[3])] {
+                        if passes {
+                            c += pv;
+                        }
+                    }
+                    pass += q * c;
+                }
             }
-        }
-        per_type[t] = decisive;
-        if first {
-            passage = pass;
-            first = false;
-        }
-    })?;
+            per_type[t] = decisive;
+            if first {
+                passage = pass;
+                first = false;
+            }
+        },
+    )?;
     // Quorum: every present member votes yes.
-    let present: Vec<[f64; 4]> = chances.iter().map(|c| [c.present, 0.0, 0.0, 1.0 - c.present]).collect();
-    let all = add_all(&origin, &(0..n).collect::<Vec<_>>(), &enc, &present, max_states, &mut widest)?;
+    let present: Vec<[f64; 4]> = chances
+        .iter()
+        .map(|c| [c.present, 0.0, 0.0, 1.0 - c.present])
+        .collect();
+    let all = add_all(
+        &origin,
+        &(0..n).collect::<Vec<_>>(),
+        &enc,
+        &present,
+        max_states,
+        &mut widest,
+    )?;
     let mut carried = 0.0;
     for &(key, q) in &all {
         enc.decode(key, &mut values);
@@ -496,7 +514,8 @@ pub fn sample_model<W: AsRef<[u64]> + Sync>(
             }
             let _ = (yes, no, abstain);
             let none = [0u64; MAX_ATTRIBUTES];
-            if !rule.passes_with_group_sums(&present[..attributes], &none[..attributes], &none[..attributes]) {
+            if !rule.passes_with_group_sums(&present[..attributes], &none[..attributes], &none[..attributes])
+            {
                 hits[n + 1] += 1;
             }
             for i in 0..n {
@@ -509,14 +528,22 @@ pub fn sample_model<W: AsRef<[u64]> + Sync>(
                     }
                     sums[0][a] += w;
                 }
-                let with_yes = rule.passes_with_group_sums(&sums[0][..attributes], &sums[1][..attributes], &sums[2][..attributes]);
+                let with_yes = rule.passes_with_group_sums(
+                    &sums[0][..attributes],
+                    &sums[1][..attributes],
+                    &sums[2][..attributes],
+                );
                 for a in 0..attributes {
                     let w = rule.weight(a, i);
                     sums[0][a] -= w;
                     sums[1][a] += w;
                 }
                 if with_yes
-                    && !rule.passes_with_group_sums(&sums[0][..attributes], &sums[1][..attributes], &sums[2][..attributes])
+                    && !rule.passes_with_group_sums(
+                        &sums[0][..attributes],
+                        &sums[1][..attributes],
+                        &sums[2][..attributes],
+                    )
                 {
                     hits[i] += 1;
                 }

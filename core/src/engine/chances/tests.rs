@@ -12,7 +12,10 @@ const STATES: [Vote; 4] = [Vote::Yes, Vote::No, Vote::Abstain, Vote::Absent];
 fn passes(rule: &Rule<Vec<u64>>, votes: &[Vote]) -> bool {
     let ballot = Ballot::<1>::from_votes(votes).unwrap();
     let mut sums = [[0u64; MAX_ATTRIBUTES]; 3];
-    for (group, out) in [ballot.yes(), ballot.no(), ballot.abstain()].into_iter().zip(&mut sums) {
+    for (group, out) in [ballot.yes(), ballot.no(), ballot.abstain()]
+        .into_iter()
+        .zip(&mut sums)
+    {
         for (a, s) in out.iter_mut().enumerate().take(rule.attributes()) {
             *s = group.iter().map(|i| rule.weight(a, i)).sum();
         }
@@ -49,7 +52,13 @@ fn brute_force(rule: &Rule<Vec<u64>>, chances: &[Chances]) -> (Vec<f64>, f64, f6
         // Everyone present votes yes: does the motion pass?
         let carried: Vec<Vote> = votes
             .iter()
-            .map(|v| if *v == Vote::Absent { Vote::Absent } else { Vote::Yes })
+            .map(|v| {
+                if *v == Vote::Absent {
+                    Vote::Absent
+                } else {
+                    Vote::Yes
+                }
+            })
             .collect();
         if !passes(rule, &carried) {
             failed += p;
@@ -62,7 +71,10 @@ fn brute_force(rule: &Rule<Vec<u64>>, chances: &[Chances]) -> (Vec<f64>, f64, f6
             let (yes, no) = (pass[code], pass[code + (1 << (2 * i))]);
             assert!(yes || !no, "monotone in yes votes");
             if yes && !no {
-                decisive[i] += (0..n).filter(|&j| j != i).map(|j| chance_of(&chances[j], votes[j])).product::<f64>();
+                decisive[i] += (0..n)
+                    .filter(|&j| j != i)
+                    .map(|j| chance_of(&chances[j], votes[j]))
+                    .product::<f64>();
             }
         }
     }
@@ -76,7 +88,11 @@ fn chance() -> impl Strategy<Value = f64> {
 fn model(n: usize) -> impl Strategy<Value = Vec<Chances>> {
     prop::collection::vec((chance(), chance(), prop_oneof![Just(0.0), 0.0f64..=1.0]), n).prop_map(|v| {
         v.into_iter()
-            .map(|(present, yes, abstain)| Chances { present, yes, abstain })
+            .map(|(present, yes, abstain)| Chances {
+                present,
+                yes,
+                abstain,
+            })
             .collect()
     })
 }
@@ -127,7 +143,8 @@ fn monte_carlo_covers_the_exact_figures() {
     // A fictional body: 3 large members, 6 small; more seats yes than no.
     // Small members rarely come.
     let seats = [9u64, 7, 5, 1, 1, 1, 1, 1, 1];
-    let rule = crate::fixtures::four_state_rule(&seats, crate::fixtures::four_state_form(0, 0), None).unwrap();
+    let rule =
+        crate::fixtures::four_state_rule(&seats, crate::fixtures::four_state_form(0, 0), None).unwrap();
     let chances: Vec<Chances> = seats
         .iter()
         .map(|&s| Chances {
@@ -147,7 +164,11 @@ fn monte_carlo_covers_the_exact_figures() {
     let mc = sample_model(&rule, &chances, &s).unwrap();
     for i in 0..seats.len() {
         let e = mc.decisive[i];
-        assert!((e.value - exact.decisive[i]).abs() <= 2.0 * e.half_width, "member {i}: {e:?} vs {}", exact.decisive[i]);
+        assert!(
+            (e.value - exact.decisive[i]).abs() <= 2.0 * e.half_width,
+            "member {i}: {e:?} vs {}",
+            exact.decisive[i]
+        );
     }
     assert!((mc.passage.value - exact.passage).abs() <= 2.0 * mc.passage.half_width);
     assert!((mc.quorum_failure.value - exact.quorum_failure).abs() <= 2.0 * mc.quorum_failure.half_width);
@@ -157,7 +178,11 @@ fn monte_carlo_covers_the_exact_figures() {
 fn too_many_states_is_refused() {
     // 40 members of distinct weights, two forms: the distribution grows past 1,000 states.
     let weights: Vec<u64> = (1..=40).collect();
-    let rule = crate::fixtures::four_state_rule(&weights, crate::fixtures::four_state_form(0, 0), None).unwrap();
+    let rule =
+        crate::fixtures::four_state_rule(&weights, crate::fixtures::four_state_form(0, 0), None).unwrap();
     let chances = vec![Chances::turnout(0.5); 40];
-    assert!(matches!(exact_model(&rule, &chances, 1000), Err(Error::TooCostly { .. })));
+    assert!(matches!(
+        exact_model(&rule, &chances, 1000),
+        Err(Error::TooCostly { .. })
+    ));
 }
