@@ -104,6 +104,9 @@ export interface MemberReport {
   banzhaf_half_width: number | null;
   shapley_shubik_half_width: number | null;
   ternary_banzhaf?: number;
+  decisive_probability?: number;
+  decisive_probability_half_width?: number | null;
+  decisive_share?: number;
 }
 
 export interface ConditionReport {
@@ -118,6 +121,23 @@ export interface SettledCondition {
   text: string;
   always: boolean;
   why: string;
+}
+
+/** Figures under the voting model (`turnout`, or `--chances` on the command line). */
+export interface VotingModelReport {
+  kind: string;
+  turnout: number | null;
+  chances_file: string | null;
+  description: string;
+  method: string;
+  approximate: boolean;
+  rounding_bound: number | null;
+  confidence: number | null;
+  samples: number | null;
+  passage_probability: number;
+  passage_probability_half_width: number | null;
+  quorum_failure_probability: number;
+  quorum_failure_probability_half_width: number | null;
 }
 
 /** The power report: the JSON of `clout report --format json`. */
@@ -142,7 +162,10 @@ export interface Report {
   penrose_method: string | null;
   shapley_shubik_method: string | null;
   confidence: number | null;
-  attendance?: { chance: number; passage_probability: number };
+  penrose_samples: number | null;
+  shapley_shubik_samples: number | null;
+  attendance?: { chance: number; passage_probability: number; passage_probability_half_width?: number };
+  voting_model?: VotingModelReport;
   model: string;
   caution: string;
 }

@@ -597,16 +597,15 @@ fn extras_text(out: &mut String, input: &Input, rule: &CompiledRule, report: &Re
     }
     if let Some(a) = &report.attendance {
         let p = a.chance;
+        let hw = a
+            .passage_probability_half_width
+            .map_or(String::new(), |h| format!(" ±{h:.1e} (Monte Carlo, 95%)"));
         let _ = writeln!(
             out,
-            "\nprobability of passage with attendance {p}: {:.6} (each member present with chance {p}, then yes or no with equal chance)",
+            "\nprobability of passage with attendance {p}: {:.6}{hw} (each member present with chance {p}, then yes or no with equal chance)",
             a.passage_probability
         );
     }
-}
-
-fn pm(value: f64, half_width: Option<f64>) -> String {
-    format!("{} ±{:.1e}", text::index(value), half_width.unwrap_or_default())
 }
 
 fn approximate_text(input: &Input, rule: &CompiledRule, report: &Report) -> String {
@@ -632,9 +631,23 @@ fn approximate_text(input: &Input, rule: &CompiledRule, report: &Report) -> Stri
         for attr in 0..file.attributes.len() {
             row.push(text::thousands(&file.weight(attr, i).to_string()));
         }
-        row.push(pm(m.penrose, m.penrose_half_width));
-        row.push(pm(m.banzhaf, m.banzhaf_half_width));
-        row.push(pm(m.shapley_shubik, m.shapley_shubik_half_width));
+        let drawn = report.penrose_samples.unwrap_or(0);
+        let orderings = report.shapley_shubik_samples.unwrap_or(0);
+        row.push(resolved(
+            m.penrose,
+            m.penrose_half_width.unwrap_or_default(),
+            drawn,
+        ));
+        row.push(resolved(
+            m.banzhaf,
+            m.banzhaf_half_width.unwrap_or_default(),
+            drawn,
+        ));
+        row.push(resolved(
+            m.shapley_shubik,
+            m.shapley_shubik_half_width.unwrap_or_default(),
+            orderings,
+        ));
         table.push(row);
     }
     out.push_str(&table.render());

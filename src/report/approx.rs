@@ -36,6 +36,10 @@ pub struct Approximation {
     pub penrose_method: String,
     /// How the Shapley-Shubik indices were estimated.
     pub shapley_method: String,
+    /// Coalitions drawn for the Penrose measures (None: counted in floating point).
+    pub penrose_samples: Option<u64>,
+    /// Orderings drawn for the Shapley-Shubik indices.
+    pub shapley_samples: u64,
 }
 
 /// Estimates every member's Penrose measure, Banzhaf and Shapley-Shubik index.
@@ -47,10 +51,11 @@ pub fn approximate(rule: &CompiledRule, options: &Options) -> Result<Approximati
         tolerance: options.tolerance,
         ..Sampling::default()
     };
-    let (penrose, penrose_method) = match r.single_threshold() {
+    let (penrose, penrose_method, penrose_samples) = match r.single_threshold() {
         Some((_, q)) if q < F64_TABLE => (
             penrose_f64(r).map_err(fail)?,
             "floating-point counting over sums (the bound is a worst-case rounding error)".to_string(),
+            None,
         ),
         _ => {
             let p = sample_penrose(r, &s).map_err(fail)?;
@@ -65,6 +70,7 @@ pub fn approximate(rule: &CompiledRule, options: &Options) -> Result<Approximati
                     "Monte Carlo, {} coalitions, seed {}, Wilson 95% intervals{note}",
                     p.samples, options.seed
                 ),
+                Some(p.samples),
             )
         }
     };
@@ -91,6 +97,8 @@ pub fn approximate(rule: &CompiledRule, options: &Options) -> Result<Approximati
         shapley: ss.members,
         penrose_method,
         shapley_method,
+        penrose_samples,
+        shapley_samples: ss.samples,
     })
 }
 

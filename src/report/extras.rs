@@ -18,8 +18,8 @@ pub const MAX_TERNARY_PROFILES: f64 = 5e7;
 pub struct Extras {
     /// The ternary Banzhaf measure of every member.
     pub ternary: Option<Vec<f64>>,
-    /// (attendance chance, probability of passage).
-    pub attendance: Option<(f64, f64)>,
+    /// (attendance chance, probability of passage, its half-width when estimated).
+    pub attendance: Option<(f64, f64, Option<f64>)>,
 }
 
 impl Extras {
@@ -32,12 +32,13 @@ impl Extras {
             .iter()
             .map(|m| (m.len() as f64 + 1.0) * (m.len() as f64 + 2.0) / 2.0)
             .product();
-        if profiles > MAX_TERNARY_PROFILES {
+        let too_many = profiles > MAX_TERNARY_PROFILES;
+        if too_many && options.ternary {
             return Err(Failure::input(format!(
-                "rule `{}`: three-way ballots need about {profiles:.1e} profiles of member types, over the limit of {MAX_TERNARY_PROFILES:.0e}",
+                "rule `{}`: the ternary measure needs about {profiles:.1e} three-way profiles of member types, over the limit of {MAX_TERNARY_PROFILES:.0e}",
                 rule.name
             ))
-            .with_hint("--ternary and --attendance count every way of voting yes, no or abstaining; members with identical weights make that much cheaper"));
+            .with_hint("--ternary counts every way of voting yes, no or abstaining; members with identical weights make that much cheaper (leave out --ternary for the other figures)"));
         }
         let fail = |e: clout_core::Error| Failure::input(format!("rule `{}`: {e}", rule.name));
         let r = &rule.rule;
@@ -54,10 +55,21 @@ impl Extras {
             None
         };
         let attendance = match options.attendance {
-            Some(p) => Some((
+            Some(p) if !too_many => Some((
                 p,
                 clout_core::ternary::passage_with_attendance(r, p).map_err(fail)?,
+                None,
             )),
+            // Beyond the profiles: the voting model with that turnout.
+            Some(p) => {
+                let (m, _) = super::model::compute(
+                    rule,
+                    &super::model::VotingModel::Turnout(p),
+                    options.seed,
+                    options.tolerance,
+                )?;
+                Some((p, m.passage_probability, m.passage_probability_half_width))
+            }
             None => None,
         };
         Ok(Extras { ternary, attendance })

@@ -144,6 +144,10 @@ pub struct Report {
     pub shapley_shubik_method: Option<String>,
     /// Confidence of the half-widths (null when exact).
     pub confidence: Option<f64>,
+    /// Coalitions drawn for the Penrose measures (null when exact or counted in floating point).
+    pub penrose_samples: Option<u64>,
+    /// Orderings drawn for the Shapley-Shubik indices (null when exact).
+    pub shapley_shubik_samples: Option<u64>,
     /// Passage when members attend by chance (`--attendance`).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub attendance: Option<AttendanceReport>,
@@ -242,6 +246,9 @@ pub struct AttendanceReport {
     pub chance: f64,
     /// Probability that the motion passes.
     pub passage_probability: f64,
+    /// Its half-width when estimated by Monte Carlo (absent when exact).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub passage_probability_half_width: Option<f64>,
 }
 
 /// Decides how to compute: exact counting when an engine fits, otherwise
@@ -455,12 +462,16 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
             }
         })
         .collect();
-    let attendance = extras
-        .attendance
-        .map(|(chance, passage_probability)| AttendanceReport {
-            chance,
-            passage_probability,
-        });
+    let attendance =
+        extras
+            .attendance
+            .map(
+                |(chance, passage_probability, passage_probability_half_width)| AttendanceReport {
+                    chance,
+                    passage_probability,
+                    passage_probability_half_width,
+                },
+            );
     let mut report = Report {
         rule: rule.name.clone(),
         title: file.title.clone(),
@@ -483,6 +494,8 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
         penrose_method: None,
         shapley_shubik_method: None,
         confidence: None,
+        penrose_samples: None,
+        shapley_shubik_samples: None,
         attendance,
         rounding: None,
         voting_model: None,
@@ -511,6 +524,8 @@ fn assemble(file: &RuleFile, rule: &CompiledRule, figures: &Figures, extras: &ex
             report.penrose_method = Some(a.penrose_method.clone());
             report.shapley_shubik_method = Some(a.shapley_method.clone());
             report.confidence = Some(0.95);
+            report.penrose_samples = a.penrose_samples;
+            report.shapley_shubik_samples = Some(a.shapley_samples);
         }
     }
     report
