@@ -132,6 +132,10 @@ def test_report_options(cli):
     f = clout.load(ROOT / "examples/assembly.clout")
     args = ["report", "examples/assembly.clout"]
     assert f.report(ternary=True, attendance=0.8) == cli.json([*args, "--ternary", "--attendance", "0.8"])
+    dao = clout.load(ROOT / "examples/token-dao.clout")
+    assert dao.report("proposal", turnout=0.15) == cli.json(
+        ["report", "examples/token-dao.clout", "--rule", "proposal", "--turnout", "0.15"]
+    )
     transit = clout.load(ROOT / "examples/transit.clout")
     assert transit.report("charter", engine="enumerate") == cli.json(
         ["report", "examples/transit.clout", "--rule", "charter", "--engine", "enumerate"]
