@@ -37,6 +37,18 @@ fn read(path: &Path) -> String {
     std::fs::read_to_string(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
 }
 
+/// Runs `clout ARGS --svg FILE` and returns the SVG's text.
+fn svg_of(args: &[&str]) -> String {
+    let dir = scratch(args[0]);
+    let path = dir.join("picture.svg");
+    let mut all_args = args.to_vec();
+    all_args.extend(["--svg", path.to_str().unwrap()]);
+    ok(&all_args);
+    let text = read(&path);
+    std::fs::remove_dir_all(&dir).ok();
+    text
+}
+
 fn class_is(n: &Node, class: &str) -> bool {
     n.attribute("class")
         .is_some_and(|c| c.split(' ').any(|x| x == class))
@@ -145,16 +157,7 @@ fn report_chart_matches_the_report() {
 /// (by hand).
 #[test]
 fn report_chart_marks_vetoes_and_dummies() {
-    let dir = scratch("marks");
-    let path = dir.join("game.svg");
-    ok(&[
-        "report",
-        "--game",
-        "[6; 4, 2, 1]",
-        "--svg",
-        path.to_str().unwrap(),
-    ]);
-    let text = read(&path);
+    let text = svg_of(&["report", "--game", "[6; 4, 2, 1]"]);
     let doc = parse(&text).unwrap();
     let rows = all(doc.root(), "row");
     let flags = |r: &Node| -> Vec<String> { all(*r, "flag").into_iter().map(text_of).collect() };
@@ -163,37 +166,22 @@ fn report_chart_marks_vetoes_and_dummies() {
     assert_eq!(flags(&rows[1]), ["▲ veto"]);
     assert_eq!(flags(&rows[2]), ["○ dummy"]);
     assert_eq!(number(&all(rows[2], "banzhaf")[0], "data-value"), 0.0);
-    std::fs::remove_dir_all(&dir).ok();
 }
 
 /// An approximate report draws each estimate's interval and writes it.
 #[test]
 fn approximate_report_chart_shows_intervals() {
-    let dir = scratch("approx");
-    let path = dir.join("approx.svg");
-    ok(&[
+    let args = [
         "report",
         "examples/transit.clout",
         "--budget",
         "1",
         "--tolerance",
         "0.01",
-        "--svg",
-        path.to_str().unwrap(),
-    ]);
-    let report: Value = serde_json::from_str(&ok(&[
-        "report",
-        "examples/transit.clout",
-        "--budget",
-        "1",
-        "--tolerance",
-        "0.01",
-        "--format",
-        "json",
-    ]))
-    .unwrap();
+    ];
+    let text = svg_of(&args);
+    let report: Value = serde_json::from_str(&ok(&[&args[..], &["--format", "json"]].concat())).unwrap();
     assert_eq!(report["approximate"], true);
-    let text = read(&path);
     let doc = parse(&text).unwrap();
     assert!(text_of(all(doc.root(), "note")[0]).starts_with("ESTIMATES"));
     for panel in all(doc.root(), "panel") {
@@ -221,7 +209,6 @@ fn approximate_report_chart_shows_intervals() {
             assert!(values[1].contains(" ±") && values[2].contains(" ±"), "{values:?}");
         }
     }
-    std::fs::remove_dir_all(&dir).ok();
 }
 
 /// Titles, names and rule text with markup are escaped: the SVG and the page
@@ -484,7 +471,7 @@ fn screenshots_in_headless_chromium() {
     let bless = std::env::var_os("CLOUT_BLESS").is_some_and(|v| v == "1");
     let dir = scratch("screens");
     let report_svg = dir.join("report-transit.svg");
-    let page = dir.join("report-transit.html");
+    let page = dir.join("page-transit.html");
     ok(&[
         "report",
         "examples/transit.clout",
