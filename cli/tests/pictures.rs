@@ -25,9 +25,11 @@ fn ok(args: &[&str]) -> String {
     run.stdout
 }
 
-/// A fresh folder for one test's files.
+/// A fresh folder for one test's files (tests run in parallel: each call gets its own).
 fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("clout-pictures-{name}-{}", std::process::id()));
+    static NEXT: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let k = NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let dir = std::env::temp_dir().join(format!("clout-pictures-{name}-{}-{k}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir
