@@ -105,6 +105,11 @@ enum clout_result
    */
   CLOUT_RESULT_INTERNAL = 9,
   /**
+   * This build of the library leaves the function out (a firmware build
+   * without the heap: `clout_rule_new`, `clout_power`).
+   */
+  CLOUT_RESULT_NOT_IN_BUILD = 10,
+  /**
    * Not a rule image: the magic bytes are wrong.
    */
   CLOUT_RESULT_IMAGE_MAGIC = 100,
@@ -353,6 +358,7 @@ clout_result clout_critical(const clout_rule *rule,
  * into three caller arrays of `len >= members` entries each (entries from
  * `members` on are left alone). Rules of more than
  * `CLOUT_POWER_MAX_MEMBERS` members give `CLOUT_RESULT_POWER_CAPACITY`.
+ * A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
  */
 clout_result clout_power(const clout_rule *rule,
                          uint64_t *swings,
@@ -402,6 +408,7 @@ clout_result clout_rule_load(const uint8_t *image,
 /**
  * Loads an image into memory the library allocates; release it with
  * `clout_rule_free`. The image bytes are no longer needed after the call.
+ * A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
  */
 clout_result clout_rule_new(const uint8_t *image, size_t image_len, clout_rule **rule);
 

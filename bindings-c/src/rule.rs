@@ -98,6 +98,7 @@ pub extern "C" fn clout_rule_load(
 
 /// Loads an image into memory the library allocates; release it with
 /// `clout_rule_free`. The image bytes are no longer needed after the call.
+/// A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
 #[no_mangle]
 pub extern "C" fn clout_rule_new(
     image: *const u8,

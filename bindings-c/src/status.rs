@@ -38,6 +38,9 @@ pub enum clout_result {
     LengthTooLarge = 8,
     /// The library met an error this version cannot name. Please report it.
     Internal = 9,
+    /// This build of the library leaves the function out (a firmware build
+    /// without the heap: `clout_rule_new`, `clout_power`).
+    NotInBuild = 10,
     /// Not a rule image: the magic bytes are wrong.
     ImageMagic = 100,
     /// The image is shorter than its header, or than the length it declares.
@@ -98,7 +101,7 @@ pub enum clout_result {
 
 impl clout_result {
     /// Every code, in value order.
-    pub const ALL: [clout_result; 38] = {
+    pub const ALL: [clout_result; 39] = {
         use clout_result::*;
         [
             Ok,
@@ -111,6 +114,7 @@ impl clout_result {
             NotHeapRule,
             LengthTooLarge,
             Internal,
+            NotInBuild,
             ImageMagic,
             ImageTruncated,
             ImageVersion,
@@ -163,6 +167,7 @@ impl clout_result {
             }
             LengthTooLarge => "a length is larger than any buffer can be",
             Internal => "internal error; please report it",
+            NotInBuild => "this build of the library leaves the function out (built without the heap)",
             ImageMagic => "not a clout rule image (wrong magic bytes)",
             ImageTruncated => "image truncated: shorter than its header or declared length",
             ImageVersion => "image format version not supported; compile the rule again",

@@ -460,13 +460,15 @@ static int test_not_a_rule(void) {
  * produce: PANIC (a library bug; Rust unit test ffi::panics_become_a_code),
  * MISALIGNED (a misaligned pointer is undefined behaviour in C itself; Rust
  * unit test ffi::pointers_are_checked), OUT_OF_MEMORY (the system refusing
- * memory), INTERNAL, COUNT_OVERFLOW (counts of at most 64 members fit the
+ * memory), INTERNAL, NOT_IN_BUILD (this suite runs on a build with the
+ * heap; tests/firmware.rs covers it), COUNT_OVERFLOW (counts of at most 64 members fit the
  * 128-bit counter) and NO_ENGINE (some engine always estimates a cost). */
 static int test_messages(void) {
     static const clout_result all[] = {
         CLOUT_RESULT_OK, CLOUT_RESULT_NULL_ARGUMENT, CLOUT_RESULT_BUFFER_TOO_SMALL, CLOUT_RESULT_PANIC,
         CLOUT_RESULT_OUT_OF_MEMORY, CLOUT_RESULT_MISALIGNED, CLOUT_RESULT_NOT_A_RULE,
         CLOUT_RESULT_NOT_HEAP_RULE, CLOUT_RESULT_LENGTH_TOO_LARGE, CLOUT_RESULT_INTERNAL,
+        CLOUT_RESULT_NOT_IN_BUILD,
         CLOUT_RESULT_IMAGE_MAGIC, CLOUT_RESULT_IMAGE_TRUNCATED, CLOUT_RESULT_IMAGE_VERSION,
         CLOUT_RESULT_IMAGE_TRAILING_BYTES, CLOUT_RESULT_IMAGE_CHECKSUM, CLOUT_RESULT_IMAGE_WIDTH,
         CLOUT_RESULT_IMAGE_LAYOUT, CLOUT_RESULT_IMAGE_NODE_KIND, CLOUT_RESULT_IMAGE_CONDITION_KIND,
@@ -481,7 +483,7 @@ static int test_messages(void) {
     };
     size_t n = sizeof all / sizeof all[0], i, j, written;
     char text[CLOUT_MESSAGE_MAX], unknown[CLOUT_MESSAGE_MAX];
-    CHECK(n == 38);
+    CHECK(n == 39);
     for (i = 0; i < n; i++) {
         for (j = 0; j < i; j++) CHECK(all[i] != all[j]);
         CHECK_CODE(clout_result_message(all[i], text, sizeof text, &written), CLOUT_RESULT_OK);
