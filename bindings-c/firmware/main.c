@@ -8,6 +8,10 @@
  *
  *   stack: clout_rule_load N, clout_decide N, ... (bytes)
  *
+ * Before anything else the firmware compares the image's roster digest
+ * with the one the header was written with (rule_roster_digest), as a
+ * device refuses an image compiled for another roster.
+ *
  * Built and run by run.sh under qemu-system-arm (mps2-an386).
  */
 #define main tally_main
@@ -62,9 +66,17 @@ static uint32_t __attribute__((noinline)) stack_needed(void (*call)(void)) {
 
 int main(void) {
     static char *argv[] = {"tally", NULL};
+    uint8_t digest[CLOUT_ROSTER_DIGEST_LEN];
     clout_rule_sizes sizes;
     uint32_t i, members;
-    int status = tally_main(1, argv);
+    int status;
+
+    if (clout_image_roster_digest(rule_image, RULE_IMAGE_LEN, digest, sizeof digest) != CLOUT_RESULT_OK ||
+        memcmp(digest, rule_roster_digest, sizeof digest) != 0) {
+        fprintf(stderr, "firmware: the image was compiled for another roster\n");
+        return 2;
+    }
+    status = tally_main(1, argv);
 
     if (clout_rule_load(rule_image, RULE_IMAGE_LEN, rule_memory, RULE_WORDS, &measure_rule) != CLOUT_RESULT_OK ||
         clout_rule_info(measure_rule, &sizes) != CLOUT_RESULT_OK)

@@ -51,6 +51,8 @@ struct Slot {
     tag: u64,
     /// Words the library allocated for this rule; 0 for caller memory.
     heap_words: usize,
+    /// The image's roster digest (`None` for a version-1 image).
+    roster: Option<[u8; image::DIGEST_LEN]>,
     rule: Rule<SlotWeights>,
 }
 
@@ -171,6 +173,16 @@ pub(crate) fn write_text(
 
 /// The rule behind a handle, after checking that it points at a live rule.
 pub(crate) fn rule<'a>(handle: *const clout_rule) -> Result<&'a LoadedRule, clout_result> {
+    Ok(&slot(handle)?.rule)
+}
+
+/// The roster digest of the rule behind a handle, if its image had one.
+pub(crate) fn roster(handle: *const clout_rule) -> Result<Option<[u8; image::DIGEST_LEN]>, clout_result> {
+    Ok(slot(handle)?.roster)
+}
+
+/// The Slot behind a handle, after checking that it is live.
+fn slot<'a>(handle: *const clout_rule) -> Result<&'a Slot, clout_result> {
     let first = handle.cast::<u64>();
     check_pointer(first, 1)?;
     // SAFETY: a handle points at a Slot, whose first word is the tag;
@@ -182,7 +194,7 @@ pub(crate) fn rule<'a>(handle: *const clout_rule) -> Result<&'a LoadedRule, clou
         return Err(clout_result::NotARule);
     }
     // SAFETY: the tag says `place_rule` wrote a whole Slot here.
-    Ok(unsafe { &(*slot).rule })
+    Ok(unsafe { &*slot })
 }
 
 /// Words of rule memory an image needs, after checking the image completely.
@@ -216,13 +228,14 @@ fn place_rule(
         slice::from_raw_parts_mut(weights_ptr, weights_len)
     };
     // SlotWeights points where `load_with` wrote the table: into this memory.
-    let rule = image::load_with(image, weights, |table| SlotWeights {
+    let (rule, roster) = image::load_with_roster(image, weights, |table| SlotWeights {
         ptr: table.as_ptr(),
         len: table.len(),
     })?;
     let slot = Slot {
         tag: TAG,
         heap_words,
+        roster,
         rule,
     };
     // At most ALIGN_SLACK bytes from the start, so the Slot stays inside the

@@ -59,7 +59,8 @@ pub use ballot::{
 pub use ffi::{clout_rule, CLOUT_RULE_HEADER_WORDS};
 pub use power::{clout_power, CLOUT_POWER_MAX_MEMBERS};
 pub use rule::{
-    clout_image_check, clout_image_describe, clout_rule_free, clout_rule_info, clout_rule_load,
-    clout_rule_new, clout_rule_sizes, clout_rule_words, CLOUT_DESCRIPTION_MAX,
+    clout_image_check, clout_image_describe, clout_image_roster_digest, clout_rule_free, clout_rule_info,
+    clout_rule_load, clout_rule_new, clout_rule_roster_digest, clout_rule_sizes, clout_rule_words,
+    CLOUT_DESCRIPTION_MAX, CLOUT_ROSTER_DIGEST_LEN,
 };
 pub use status::{clout_result, clout_result_message, CLOUT_MESSAGE_MAX};

@@ -59,6 +59,12 @@ pub enum clout_result {
     ImageNodeKind = 107,
     /// A condition has an unknown kind.
     ImageConditionKind = 108,
+    /// The image's member names are malformed.
+    ImageNames = 109,
+    /// The image's roster digest does not match its names and weights.
+    ImageRoster = 110,
+    /// The image has no roster digest (format version 1).
+    ImageNoRoster = 111,
     /// The rule has no members.
     NoMembers = 200,
     /// More members than this build holds.
@@ -101,7 +107,7 @@ pub enum clout_result {
 
 impl clout_result {
     /// Every code, in value order.
-    pub const ALL: [clout_result; 39] = {
+    pub const ALL: [clout_result; 42] = {
         use clout_result::*;
         [
             Ok,
@@ -124,6 +130,9 @@ impl clout_result {
             ImageLayout,
             ImageNodeKind,
             ImageConditionKind,
+            ImageNames,
+            ImageRoster,
+            ImageNoRoster,
             NoMembers,
             TooManyMembers,
             TooManyAttributes,
@@ -177,6 +186,9 @@ impl clout_result {
             ImageLayout => "image length does not match its sections",
             ImageNodeKind => "image has a formula node of unknown kind",
             ImageConditionKind => "image has a condition of unknown kind",
+            ImageNames => "image has malformed member names",
+            ImageRoster => "image damaged: the roster digest does not match its names and weights",
+            ImageNoRoster => "image has no roster digest (format version 1); compile the rule again",
             NoMembers => "the rule has no members",
             TooManyMembers => "the rule has more members than this build holds",
             TooManyAttributes => "the rule has more than 64 weight attributes",
@@ -242,6 +254,8 @@ impl From<ImageError> for clout_result {
             ImageError::BadConditionKind { .. } => ImageConditionKind,
             ImageError::Rule(e) => e.into(),
             ImageError::BufferTooSmall { .. } => BufferTooSmall,
+            ImageError::BadNames { .. } => ImageNames,
+            ImageError::RosterMismatch => ImageRoster,
             _ => Internal,
         }
     }

@@ -17,7 +17,22 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
     let s = &args.source;
     let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
     let rule = input.rule(s.rule.as_deref())?;
-    let bytes = image::encode(&rule.rule);
+    let names: Vec<&str> = input.file.members.iter().map(|m| m.name.as_str()).collect();
+    if names.len() != rule.rule.members() {
+        return Err(Failure::input(
+            "internal: the rule's members are not the file's".to_string(),
+        ));
+    }
+    let roster = image::Roster {
+        rule: &rule.name,
+        members: &names,
+    };
+    let bytes = image::encode_named(&rule.rule, &roster).map_err(|e| {
+        Failure::input(format!(
+            "{e}\n  = hint: images store names of at most {} bytes; shorten the longer names",
+            image::MAX_NAME_LEN
+        ))
+    })?;
     // Read back what we are about to write: the device must see the same rule.
     let mut weights = vec![0u64; image::weights_needed(&bytes).map_err(|e| Failure::input(e.to_string()))?];
     let loaded = image::load(&bytes, &mut weights).map_err(|e| Failure::input(format!("internal: {e}")))?;
@@ -27,14 +42,12 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
         ));
     }
     let words = rule_words(&bytes)?;
-    let names: Vec<&str> = input.file.members.iter().map(|m| m.name.as_str()).collect();
-    if names.len() != rule.rule.members() {
-        return Err(Failure::input(
-            "internal: the rule's members are not the file's".to_string(),
-        ));
-    }
+    let digest = image::roster_digest(&rule.rule, Some(&names));
     let header = match &args.c_header {
-        Some(path) => Some((path, c_header(&args.c_prefix, &rule.name, &bytes, words, &names)?)),
+        Some(path) => Some((
+            path,
+            c_header(&args.c_prefix, &rule.name, &bytes, words, &digest, &names)?,
+        )),
         None => None,
     };
     let out = output_path(args, s.file.as_deref(), &rule.name);
@@ -42,12 +55,14 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
         .map_err(|e| Failure::input(format!("cannot write {}: {e}", out.display())))?;
     let mut text = format!(
         "wrote {} ({} bytes): rule `{}`, {} members, {} conditions, CRC-32 checked on load\n\
-         rule memory: {words} words of 8 bytes (clout_rule_words)\n",
+         rule memory: {words} words of 8 bytes (clout_rule_words)\n\
+         roster digest (SHA-256 of the member names and weights): {}\n",
         out.display(),
         bytes.len(),
         rule.name,
         rule.rule.members(),
-        rule.rule.atoms().len()
+        rule.rule.atoms().len(),
+        hex(&digest)
     );
     if let Some((path, header)) = header {
         std::fs::write(path, header)
@@ -92,6 +107,7 @@ fn c_header(
     rule: &str,
     bytes: &[u8],
     words: usize,
+    digest: &[u8; image::DIGEST_LEN],
     members: &[&str],
 ) -> Result<String, Failure> {
     let valid = prefix.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
@@ -138,13 +154,27 @@ fn c_header(
          #define {upper}_IMAGE_LEN {len}u\n\
          /* uint64_t words of rule memory clout_rule_load needs (clout_rule_words). */\n\
          #define {upper}_WORDS {words}u\n\
-         #define {upper}_MEMBERS {n}u\n\n\
+         #define {upper}_MEMBERS {n}u\n\
+         /* The roster digest (clout_rule_roster_digest): SHA-256 of the member\n \
+         * names and weights. Refuse an image whose digest differs. */\n\
+         static const uint8_t {lower}_roster_digest[{dlen}] = {{{digest_bytes}}};\n\n\
          /* Member indices: ballot bit, list entry or vote byte of each member. */\n\
          {defines}\n#endif\n",
         rule = c_comment(rule),
         len = bytes.len(),
         n = members.len(),
+        dlen = digest.len(),
+        digest_bytes = digest
+            .iter()
+            .map(|b| format!("0x{b:02X}"))
+            .collect::<Vec<_>>()
+            .join(", "),
     ))
+}
+
+/// Lowercase hexadecimal.
+fn hex(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
 
 /// `text` safe inside a C comment: printable ASCII only (anything else,
@@ -175,7 +205,18 @@ pub fn inspect(args: &InspectArgs) -> Result<Outcome, Failure> {
             args.image.display()
         ))
     })?;
-    let text = format!("{}: {info}\n", args.image.display());
+    let mut text = format!("{}: {info}\n", args.image.display());
+    if let Ok(Some(roster)) = image::roster(&bytes) {
+        if let Some(rule) = roster.rule {
+            text.push_str(&format!(
+                "rule {}; members by index:\n",
+                clout_dsl::quote::written(rule)
+            ));
+            for (i, name) in roster.members.enumerate() {
+                text.push_str(&format!("  {i} {}\n", clout_dsl::quote::written(name)));
+            }
+        }
+    }
     if info.is_intact() {
         Ok(Outcome::ok(text))
     } else {
