@@ -27,6 +27,7 @@ pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 pub mod decision;
 pub mod drafting;
 mod failure;
+pub mod images;
 pub mod record;
 pub mod report;
 pub mod scenarios;

@@ -528,7 +528,7 @@ impl RuleFile {
     #[pyo3(signature = (rule = None))]
     fn image<'py>(&self, py: Python<'py>, rule: Option<&str>) -> PyResult<Bound<'py, PyBytes>> {
         let r = self.rule(py, rule)?;
-        let bytes = detached(py, |_| image(r))?;
+        let bytes = detached(py, |_| image(&self.file, r))?;
         Ok(PyBytes::new(py, &bytes))
     }
 }
@@ -540,19 +540,10 @@ impl RuleFile {
     }
 }
 
-/// The image of a rule, loaded back and compared before it is returned.
-fn image(rule: &CompiledRule) -> Result<Vec<u8>, Failure> {
-    let bytes = clout::image::encode(&rule.rule);
-    let needed = clout::image::weights_needed(&bytes).map_err(|e| Failure::input(e.to_string()))?;
-    let mut weights = vec![0u64; needed];
-    let loaded =
-        clout::image::load(&bytes, &mut weights).map_err(|e| Failure::input(format!("internal: {e}")))?;
-    if loaded != rule.rule.as_borrowed() {
-        return Err(Failure::input(
-            "internal: the image does not load back to the same rule",
-        ));
-    }
-    Ok(bytes)
+/// The image of a rule with its names, loaded back and compared before it
+/// is returned (what `clout compile` writes).
+fn image(file: &clout::RuleFile, rule: &CompiledRule) -> Result<Vec<u8>, Failure> {
+    clout::images::named_image(file, rule)
 }
 
 /// Exact voting power, decisions and drafting tools for weighted, compound

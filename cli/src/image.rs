@@ -17,30 +17,8 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
     let s = &args.source;
     let input = Input::load(s.file.as_deref(), s.game.as_deref(), false)?;
     let rule = input.rule(s.rule.as_deref())?;
+    let bytes = clout::images::named_image(&input.file, rule)?;
     let names: Vec<&str> = input.file.members.iter().map(|m| m.name.as_str()).collect();
-    if names.len() != rule.rule.members() {
-        return Err(Failure::input(
-            "internal: the rule's members are not the file's".to_string(),
-        ));
-    }
-    let roster = image::Roster {
-        rule: &rule.name,
-        members: &names,
-    };
-    let bytes = image::encode_named(&rule.rule, &roster).map_err(|e| {
-        Failure::input(format!(
-            "{e}\n  = hint: images store names of at most {} bytes; shorten the longer names",
-            image::MAX_NAME_LEN
-        ))
-    })?;
-    // Read back what we are about to write: the device must see the same rule.
-    let mut weights = vec![0u64; image::weights_needed(&bytes).map_err(|e| Failure::input(e.to_string()))?];
-    let loaded = image::load(&bytes, &mut weights).map_err(|e| Failure::input(format!("internal: {e}")))?;
-    if loaded != rule.rule.as_borrowed() {
-        return Err(Failure::input(
-            "internal: the image does not load back to the same rule".to_string(),
-        ));
-    }
     let words = rule_words(&bytes)?;
     let digest = image::roster_digest(&rule.rule, Some(&names));
     let header = match &args.c_header {
