@@ -141,6 +141,9 @@ pub fn check(bytes: &[u8]) -> Option<Rule<Vec<u64>>> {
     } else {
         0
     };
-    assert!(again.len() <= bytes.len() + roster, "the writer uses the smallest widths");
+    assert!(
+        again.len() <= bytes.len() + roster,
+        "the writer uses the smallest widths"
+    );
     Some(rule)
 }
