@@ -29,8 +29,7 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
         None => None,
     };
     let out = output_path(args, s.file.as_deref(), &rule.name);
-    std::fs::write(&out, &bytes)
-        .map_err(|e| Failure::input(format!("cannot write {}: {e}", out.display())))?;
+    crate::write_file(&out, &bytes)?;
     let mut text = format!(
         "wrote {} ({} bytes): rule `{}`, {} members, {} conditions, CRC-32 checked on load\n\
          rule memory: {words} words of 8 bytes (clout_rule_words)\n\
@@ -43,8 +42,7 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
         hex(&digest)
     );
     if let Some((path, header)) = header {
-        std::fs::write(path, header)
-            .map_err(|e| Failure::input(format!("cannot write {}: {e}", path.display())))?;
+        crate::write_file(path, header.as_bytes())?;
         text.push_str(&format!("wrote {} (C header)\n", path.display()));
     }
     Ok(Outcome::ok(text))
