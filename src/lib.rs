@@ -30,6 +30,7 @@ mod failure;
 pub mod record;
 pub mod report;
 pub mod scenarios;
+pub mod tables;
 pub mod toolkit;
 
 pub use failure::{Failure, FailureKind};
