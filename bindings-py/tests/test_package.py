@@ -6,6 +6,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 import clout
 
 from conftest import ROOT
@@ -54,12 +56,12 @@ def test_load_reads_the_tables_beside_the_rule_file():
 
 
 def test_parse_takes_tables_by_the_path_written_in_the_text():
-    text = 'attribute seats\nmembers party from "parties.csv" name=name seats=seats\nrule pass = seats > 1/2\n'
+    text = 'members party from "parties.csv" name=name seats=seats\nrule pass = seats > 1/2\n'
     table = "name,seats\nleft,5\ncentre,3\nright,4\n"
     f = clout.parse(text, tables={"parties.csv": table})
     assert f.members == ["left", "centre", "right"]
     assert f.decide(yes=["left", "right"])["passed"] is True
-    with __import__("pytest").raises(clout.RuleError) as missing:
+    with pytest.raises(clout.RuleError) as missing:
         clout.parse(text)
     assert "parties.csv" in str(missing.value)
-    assert missing.value.line == 2
+    assert (missing.value.line, missing.value.column) == (1, 20)
