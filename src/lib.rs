@@ -33,6 +33,7 @@ pub mod images;
 pub mod record;
 pub mod report;
 pub mod scenarios;
+pub mod tables;
 pub mod toolkit;
 
 pub use failure::{Failure, FailureKind};
