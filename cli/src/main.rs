@@ -338,8 +338,10 @@ fn main() -> ExitCode {
         code: f.code,
     });
     // A closed pipe (`clout report | head`) is not an error of ours.
-    let _ = std::io::stdout().lock().write_all(outcome.stdout.as_bytes());
+    let stdout = text::terminal_safe(outcome.stdout);
+    let stderr = text::terminal_safe(outcome.stderr);
+    let _ = std::io::stdout().lock().write_all(stdout.as_bytes());
     let _ = std::io::stdout().lock().flush();
-    let _ = std::io::stderr().lock().write_all(outcome.stderr.as_bytes());
+    let _ = std::io::stderr().lock().write_all(stderr.as_bytes());
     ExitCode::from(outcome.code)
 }

@@ -288,11 +288,10 @@ fn label(v: f64) -> String {
     }
 }
 
-fn escape(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
+/// Input-derived text (titles, member and attribute names) for the SVG:
+/// entities, characters XML 1.0 forbids replaced, hidden ones made visible.
+fn escape(s: &str) -> std::borrow::Cow<'_, str> {
+    crate::escape::xml(s)
 }
 
 #[cfg(test)]
