@@ -159,7 +159,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
     (
         "escape-sequences.clout",
         "5:25",
-        "expected a condition, found `�`",
+        "expected a condition, found `\\u{1b}`",
     ),
     (
         "four-state-no-only.clout",
@@ -386,7 +386,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
     (
         "vertical-tab-form-feed.clout",
         "4:9",
-        "expected a condition, found `�`",
+        "expected a condition, found `\\u{b}`",
     ),
     (
         "very-long-name.clout",
