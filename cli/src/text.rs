@@ -152,18 +152,10 @@ fn shown(cell: String) -> String {
 /// this catches any they missed. JSON, CSV and SVG output pass unchanged,
 /// since they hold no such characters raw.
 pub fn terminal_safe(out: String) -> String {
-    if !out.chars().any(|c| c != '\n' && clout::escape::is_hidden(c)) {
-        return out;
+    match clout::escape::terminal_lines(&out) {
+        std::borrow::Cow::Borrowed(_) => out,
+        std::borrow::Cow::Owned(safe) => safe,
     }
-    let mut safe = String::with_capacity(out.len() + 16);
-    for c in out.chars() {
-        if c == '\n' {
-            safe.push(c);
-        } else {
-            clout::escape::push_terminal(&mut safe, c);
-        }
-    }
-    safe
 }
 
 #[cfg(test)]

@@ -382,18 +382,7 @@ pub(crate) fn shown(c: char) -> char {
 /// A file name, message or hint for a terminal: newlines kept, every other
 /// hidden character as a visible escape (`\u{1b}`, [`crate::escape`]).
 fn printable(text: &str) -> std::borrow::Cow<'_, str> {
-    if !text.chars().any(|c| shown(c) != c) {
-        return std::borrow::Cow::Borrowed(text);
-    }
-    let mut out = String::with_capacity(text.len() + 8);
-    for c in text.chars() {
-        if c == '\n' {
-            out.push(c);
-        } else {
-            crate::escape::push_terminal(&mut out, c);
-        }
-    }
-    std::borrow::Cow::Owned(out)
+    crate::escape::terminal_lines(text)
 }
 
 /// Renders every diagnostic, in order.

@@ -82,6 +82,23 @@ pub fn terminal(text: &str) -> Cow<'_, str> {
     Cow::Owned(out)
 }
 
+/// Many lines for a terminal: as [`terminal`], but newlines are kept.
+/// For messages and whole outputs whose line breaks are their own.
+pub fn terminal_lines(text: &str) -> Cow<'_, str> {
+    if !text.chars().any(|c| c != '\n' && is_hidden(c)) {
+        return Cow::Borrowed(text);
+    }
+    let mut out = String::with_capacity(text.len() + 8);
+    for c in text.chars() {
+        if c == '\n' {
+            out.push(c);
+        } else {
+            push_terminal(&mut out, c);
+        }
+    }
+    Cow::Owned(out)
+}
+
 /// [`terminal`] for one character, appended to `out`.
 pub fn push_terminal(out: &mut String, c: char) {
     if is_hidden(c) {
@@ -270,6 +287,7 @@ mod tests {
         assert!(shown.contains("\\u{1b}[2J\\u{7}\\u{202e}<script>"));
         assert!(shown.contains("\\u{e0041}\\u{a}\\u{0}"));
         assert!(matches!(terminal("plain"), Cow::Borrowed(_)));
+        assert_eq!(terminal_lines("a\u{1b}\nb\u{202e}\n"), "a\\u{1b}\nb\\u{202e}\n");
     }
 
     #[test]
