@@ -40,7 +40,11 @@ fn hostile_file() -> std::path::PathBuf {
          member other seats=1\n\
          rule \"r\\u{{1b}}]0;pwn\\u{{7}}\" = seats >= 1/2\n"
     );
-    let path = tmp("hostile.clout");
+    // One file per call: the tests run in parallel, and a rewrite would be
+    // read half-written by another.
+    static NEXT: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let n = NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let path = tmp(&format!("hostile-{n}.clout"));
     std::fs::write(&path, source).expect("write");
     path
 }
