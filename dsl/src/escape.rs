@@ -13,7 +13,7 @@
 //! | output | function | what changes |
 //! | --- | --- | --- |
 //! | terminal, plain text | [`terminal`] | controls, format and separator characters become visible `\u{..}` |
-//! | XML, SVG, HTML | [`xml`] | `& < > " '` become entities; characters XML 1.0 forbids become U+FFFD; the rest as [`terminal`] |
+//! | XML, SVG, HTML | [`xml`] | `& < > " '` become entities; characters XML 1.0 forbids become U+FFFD; tab and line breaks stay; the rest as [`terminal`] |
 //! | CSV | [`csv_field`] | as [`terminal`], a leading formula trigger gets a `'`, then quoting |
 //! | JSON | [`json_pretty`] | serde_json's escaping, plus `\uXXXX` for every character [`terminal`] would escape |
 //!
@@ -129,9 +129,10 @@ pub fn xml_allowed(c: char) -> bool {
 
 /// `text` for XML, SVG or HTML element content and attribute values (quoted
 /// with `"` or `'`): `&`, `<`, `>`, `"` and `'` become entities, characters
-/// XML 1.0 forbids become U+FFFD, and other [`is_hidden`] characters are
-/// written as [`terminal`] writes them, so a chart shows what a terminal
-/// shows. `]]>` cannot survive (its `>` becomes `&gt;`).
+/// XML 1.0 forbids become U+FFFD, tab, line feed and carriage return stay
+/// (preformatted text keeps its lines), and other [`is_hidden`] characters
+/// are written as [`terminal`] writes them, so a chart shows what a
+/// terminal shows. `]]>` cannot survive (its `>` becomes `&gt;`).
 ///
 /// ```
 /// use clout_dsl::escape::xml;
@@ -139,7 +140,10 @@ pub fn xml_allowed(c: char) -> bool {
 /// assert_eq!(xml("x\u{7}y"), "x\u{fffd}y");
 /// ```
 pub fn xml(text: &str) -> Cow<'_, str> {
-    let plain = |c: char| !matches!(c, '&' | '<' | '>' | '"' | '\'') && !is_hidden(c) && xml_allowed(c);
+    let plain = |c: char| {
+        matches!(c, '\t' | '\n' | '\r')
+            || !matches!(c, '&' | '<' | '>' | '"' | '\'') && !is_hidden(c) && xml_allowed(c)
+    };
     if text.chars().all(plain) {
         return Cow::Borrowed(text);
     }
@@ -151,6 +155,7 @@ pub fn xml(text: &str) -> Cow<'_, str> {
             '>' => out.push_str("&gt;"),
             '"' => out.push_str("&quot;"),
             '\'' => out.push_str("&#39;"),
+            '\t' | '\n' | '\r' => out.push(c),
             c if !xml_allowed(c) => out.push('\u{fffd}'),
             c => push_terminal(&mut out, c),
         }
@@ -316,7 +321,10 @@ mod tests {
         let x = xml(HOSTILE);
         assert!(!x.contains(['<', '>', '"', '\'', '\u{1b}', '\u{7}', '\u{0}', '\u{202e}']));
         assert!(x.contains("&lt;script&gt;]]&gt;&quot;&amp;&#39;"));
-        assert!(!x.chars().any(|c| !xml_allowed(c) || is_hidden(c)));
+        assert!(!x
+            .chars()
+            .any(|c| !xml_allowed(c) || (is_hidden(c) && !matches!(c, '\t' | '\n' | '\r'))));
+        assert_eq!(xml("a\nb\tc"), "a\nb\tc");
         // The two non-characters XML also forbids.
         assert_eq!(xml("\u{fffe}\u{ffff}"), "\u{fffd}\u{fffd}");
     }
