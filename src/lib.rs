@@ -33,9 +33,11 @@ pub mod chart;
 pub mod decision;
 pub mod drafting;
 mod failure;
+pub mod images;
 pub mod record;
 pub mod report;
 pub mod scenarios;
+pub mod tables;
 pub mod toolkit;
 
 pub use failure::{Failure, FailureKind};

@@ -9,9 +9,17 @@
 //!
 //! Model: every member votes yes or no independently with equal chance.
 
+//! Needs the heap (feature `alloc`); a build without it returns
+//! `CLOUT_RESULT_NOT_IN_BUILD` after the usual argument checks.
+
+#[cfg(feature = "alloc")]
+use alloc::vec::Vec;
+
+#[cfg(feature = "alloc")]
 use clout_core::engine::{self, Workspace};
+#[cfg(feature = "alloc")]
 use clout_core::planner::{plan, DEFAULT_BUDGET};
-use clout_core::{MemberCounts, PowerTable};
+use clout_core::{MemberCounts, PowerTable, RuleCounts};
 
 use crate::ffi::{self, clout_rule, LoadedRule};
 use crate::status::clout_result;
@@ -20,6 +28,7 @@ use crate::status::clout_result;
 pub const CLOUT_POWER_MAX_MEMBERS: usize = 64;
 
 /// A zeroed vector of `len` elements, or `OutOfMemory`.
+#[cfg(feature = "alloc")]
 fn scratch<T: Clone>(len: usize, zero: T) -> Result<Vec<T>, clout_result> {
     let mut v = Vec::new();
     v.try_reserve_exact(len).map_err(|_| clout_result::OutOfMemory)?;
@@ -28,7 +37,8 @@ fn scratch<T: Clone>(len: usize, zero: T) -> Result<Vec<T>, clout_result> {
 }
 
 /// Exact counts for every member, by the planner's engine.
-fn count(rule: &LoadedRule) -> Result<(clout_core::RuleCounts<u128>, Vec<MemberCounts<u128>>), clout_result> {
+#[cfg(feature = "alloc")]
+fn count(rule: &LoadedRule) -> Result<(RuleCounts<u128>, Vec<MemberCounts<u128>>), clout_result> {
     let chosen = plan(rule, DEFAULT_BUDGET)?;
     let need = engine::need(rule, chosen.engine)?;
     let mut counts = scratch(need.counts, 0u128)?;
@@ -42,11 +52,18 @@ fn count(rule: &LoadedRule) -> Result<(clout_core::RuleCounts<u128>, Vec<MemberC
     Ok((totals, members))
 }
 
+/// Without the heap there is no scratch to count in.
+#[cfg(not(feature = "alloc"))]
+fn count(_: &LoadedRule) -> Result<(RuleCounts<u128>, [MemberCounts<u128>; 0]), clout_result> {
+    Err(clout_result::NotInBuild)
+}
+
 /// Computes each member's swing count (winning coalitions that lose
 /// without the member), normalized Banzhaf index and Shapley-Shubik index
 /// into three caller arrays of `len >= members` entries each (entries from
 /// `members` on are left alone). Rules of more than
 /// `CLOUT_POWER_MAX_MEMBERS` members give `CLOUT_RESULT_POWER_CAPACITY`.
+/// A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
 #[no_mangle]
 pub extern "C" fn clout_power(
     rule: *const clout_rule,

@@ -288,7 +288,10 @@ impl Loaded {
     /// The rule's binary image (what `clout compile` writes).
     pub fn image(&self, options: Value) -> Result<Vec<u8>, Box<Thrown>> {
         let name = options::rule_only("image", options)?;
-        Ok(clout::image::encode(&self.rule(name.as_deref())?.rule))
+        Ok(clout::images::named_image(
+            &self.file,
+            self.rule(name.as_deref())?,
+        )?)
     }
 
     /// Dummies, and whether the rule is one weighted vote or a proof that it

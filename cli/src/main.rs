@@ -200,6 +200,14 @@ struct CompileArgs {
     /// Where to write the image (default: FILE with the extension `.RULE.img`).
     #[arg(short, long, value_name = "FILE.img")]
     output: Option<PathBuf>,
+    /// Also write a C header with the image as a `static const uint8_t` array,
+    /// its length, the rule memory it needs and one `#define` per member index.
+    #[arg(long, value_name = "FILE.h")]
+    c_header: Option<PathBuf>,
+    /// Prefix of the names in the C header: PREFIX_image, PREFIX_IMAGE_LEN,
+    /// PREFIX_WORDS, PREFIX_MEMBER_NAME (letters, digits and `_`).
+    #[arg(long, value_name = "PREFIX", default_value = "rule", requires = "c_header")]
+    c_prefix: String,
 }
 
 #[derive(Args)]

@@ -170,6 +170,35 @@ fn report_chart_marks_vetoes_and_dummies() {
     assert_eq!(number(&all(rows[2], "banzhaf")[0], "data-value"), 0.0);
 }
 
+/// Beyond 30 rows the smallest are summed into one: with weights 40, 39, ...,
+/// 1 (total 820) the last row holds the 11 members of weight 11 down to 1,
+/// whose shares and indices it adds up.
+#[test]
+fn report_chart_sums_the_smallest_rows_beyond_thirty() {
+    let weights: Vec<String> = (1..=40).rev().map(|w| w.to_string()).collect();
+    let game = format!("[500; {}]", weights.join(", "));
+    let text = svg_of(&["report", "--game", &game]);
+    let report: Value = serde_json::from_str(&ok(&["report", "--game", &game, "--format", "json"])).unwrap();
+    let doc = parse(&text).unwrap();
+    let rows = all(doc.root(), "row");
+    assert_eq!(rows.len(), 30);
+    let last = rows[29];
+    assert!(class_is(&last, "folded"));
+    assert_eq!(last.attribute("data-label"), Some("the other 11 rows together"));
+    assert_eq!(last.attribute("data-members"), Some("11"));
+    let members = report["members"].as_array().unwrap();
+    let sum = |key: &str| {
+        members[29..]
+            .iter()
+            .map(|m| m[key].as_f64().unwrap())
+            .sum::<f64>()
+    };
+    let bar = |kind: &str| number(&all(last, kind)[0], "data-value");
+    assert!((bar("weight") - 66.0 / 820.0).abs() < 1e-12);
+    assert!((bar("banzhaf") - sum("banzhaf")).abs() < 1e-12);
+    assert!((bar("shapley-shubik") - sum("shapley_shubik")).abs() < 1e-12);
+}
+
 /// An approximate report draws each estimate's interval and writes it.
 #[test]
 fn approximate_report_chart_shows_intervals() {
