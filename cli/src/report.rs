@@ -11,11 +11,8 @@
 use std::fmt::Write;
 
 use clout::chart::{self, page::Block};
-<<<<<<< HEAD
-use clout::report::model::{self, VotingModel};
-=======
 use clout::escape;
->>>>>>> main
+use clout::report::model::{self, VotingModel};
 use clout::report::{self, bytes, interchangeable, reason, MemberReport, Method, Options, Report};
 use clout_dsl::exact;
 use clout_dsl::{AttributeKind, CompiledRule};
