@@ -81,7 +81,8 @@ enum clout_result
    */
   CLOUT_RESULT_PANIC = 3,
   /**
-   * The system allocator refused memory.
+   * The system allocator refused memory, or the computation needs more
+   * than its memory limit.
    */
   CLOUT_RESULT_OUT_OF_MEMORY = 4,
   /**
@@ -205,7 +206,8 @@ enum clout_result
    */
   CLOUT_RESULT_POWER_CAPACITY = 400,
   /**
-   * The exact computation would take too long.
+   * The exact computation would take too long: its estimate, or the steps
+   * it spent while running, passed the step budget.
    */
   CLOUT_RESULT_TOO_COSTLY = 401,
   /**

@@ -4,14 +4,18 @@
 //! Counts are exact: the core counts in `u128` and every member's swing
 //! count fits a `uint64_t` (at most 2^63 swings among 64 members). Indices
 //! are `double`s computed from the exact counts. The engine is the one the
-//! core's planner picks within its default budget; its scratch comes from
-//! the system allocator, refused allocations give `CLOUT_RESULT_OUT_OF_MEMORY`.
+//! core's planner picks within its default budget and memory limit; the
+//! run is charged to a meter with the same limits, and every table comes
+//! from the system allocator fallibly. Over the memory limit, or an
+//! allocation the system refuses, is `CLOUT_RESULT_OUT_OF_MEMORY`; over
+//! the budget (estimated or while running) is `CLOUT_RESULT_TOO_COSTLY`:
+//! never an abort.
 //!
 //! Model: every member votes yes or no independently with equal chance.
 
-use clout_core::engine::{self, Workspace};
-use clout_core::planner::{plan, DEFAULT_BUDGET};
-use clout_core::{MemberCounts, PowerTable};
+use clout_core::engine::{self, Scope, Workspace};
+use clout_core::planner::{plan_within, Limits, DEFAULT_BUDGET, DEFAULT_MEMORY};
+use clout_core::{MemberCounts, Meter, PowerTable};
 
 use crate::ffi::{self, clout_rule, LoadedRule};
 use crate::status::clout_result;
@@ -19,26 +23,29 @@ use crate::status::clout_result;
 /// Most members `clout_power` handles.
 pub const CLOUT_POWER_MAX_MEMBERS: usize = 64;
 
-/// A zeroed vector of `len` elements, or `OutOfMemory`.
-fn scratch<T: Clone>(len: usize, zero: T) -> Result<Vec<T>, clout_result> {
-    let mut v = Vec::new();
-    v.try_reserve_exact(len).map_err(|_| clout_result::OutOfMemory)?;
-    v.resize(len, zero);
-    Ok(v)
-}
-
-/// Exact counts for every member, by the planner's engine.
-fn count(rule: &LoadedRule) -> Result<(clout_core::RuleCounts<u128>, Vec<MemberCounts<u128>>), clout_result> {
-    let chosen = plan(rule, DEFAULT_BUDGET)?;
+/// Exact counts for every member, by the planner's engine, within
+/// `budget` steps and `memory` bytes.
+pub(crate) fn count(
+    rule: &LoadedRule,
+    budget: u128,
+    memory: u64,
+) -> Result<(clout_core::RuleCounts<u128>, Vec<MemberCounts<u128>>), clout_result> {
+    let limits = Limits {
+        budget,
+        memory,
+        count_bytes: core::mem::size_of::<u128>(),
+    };
+    let chosen = plan_within(rule, Scope::All, &limits)?;
+    let meter = Meter::new(budget, memory);
     let need = engine::need(rule, chosen.engine)?;
-    let mut counts = scratch(need.counts, 0u128)?;
-    let mut indices = scratch(need.indices, 0u32)?;
-    let mut members = scratch(rule.members(), MemberCounts::EMPTY)?;
+    let mut counts = meter.vec(need.counts, 0u128)?;
+    let mut indices = meter.vec(need.indices, 0u32)?;
+    let mut members = meter.vec(rule.members(), MemberCounts::EMPTY)?;
     let work = Workspace {
         counts: &mut counts,
         indices: &mut indices,
     };
-    let totals = engine::try_count(rule, chosen.engine, &mut members, work)?;
+    let totals = engine::try_count_metered(rule, chosen.engine, Scope::All, &mut members, work, &meter)?;
     Ok((totals, members))
 }
 
@@ -67,7 +74,7 @@ pub extern "C" fn clout_power(
         if len < n {
             return Err(clout_result::BufferTooSmall);
         }
-        let (totals, members) = count(rule)?;
+        let (totals, members) = count(rule, DEFAULT_BUDGET, DEFAULT_MEMORY)?;
         let mut exact = [0u64; CLOUT_POWER_MAX_MEMBERS];
         for (e, m) in exact.iter_mut().zip(&members) {
             *e = u64::try_from(m.swings).map_err(|_| clout_result::CountOverflow)?;

@@ -26,7 +26,8 @@ pub enum clout_result {
     BufferTooSmall = 2,
     /// A bug inside the library was caught before it reached C. Please report it.
     Panic = 3,
-    /// The system allocator refused memory.
+    /// The system allocator refused memory, or the computation needs more
+    /// than its memory limit.
     OutOfMemory = 4,
     /// A pointer is not aligned for its type.
     Misaligned = 5,
@@ -88,7 +89,8 @@ pub enum clout_result {
     BallotVote = 302,
     /// Power needs a rule of at most 64 members.
     PowerCapacity = 400,
-    /// The exact computation would take too long.
+    /// The exact computation would take too long: its estimate, or the steps
+    /// it spent while running, passed the step budget.
     TooCostly = 401,
     /// An exact count does not fit in the count type.
     CountOverflow = 402,
@@ -155,7 +157,9 @@ impl clout_result {
             NullArgument => "a required pointer is NULL",
             BufferTooSmall => "a buffer is shorter than needed",
             Panic => "internal error caught at the library boundary; please report it",
-            OutOfMemory => "out of memory",
+            OutOfMemory => {
+                "out of memory: the system refused it, or the computation needs more than its memory limit"
+            }
             Misaligned => "a pointer is not aligned for its type",
             NotARule => "the pointer does not point at a loaded rule",
             NotHeapRule => {
@@ -213,7 +217,8 @@ impl From<Error> for clout_result {
             Error::NonMonotone => NonMonotone,
             Error::BallotMismatch { .. } => BallotMember,
             Error::CountOverflow => CountOverflow,
-            Error::TooCostly { .. } => TooCostly,
+            Error::TooCostly { .. } | Error::OverBudget { .. } => TooCostly,
+            Error::MemoryLimit { .. } | Error::OutOfMemory { .. } => OutOfMemory,
             Error::EngineUnsuitable { .. } => NoEngine,
             // Shapes the C ABI never builds (weight tables, quotas from
             // shares, scratch it sized itself), and variants added later.

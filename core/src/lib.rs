@@ -110,7 +110,7 @@ mod model;
 pub use analysis::planner;
 pub use analysis::PowerTable;
 #[cfg(feature = "alloc")]
-pub use analysis::{analyze, analyze_opts, analyze_with, Analysis, Options};
+pub use analysis::{analyze, analyze_metered, analyze_opts, analyze_with, Analysis, Options};
 pub use device::decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
 pub use device::image;
 pub use device::image::{ImageError, ImageInfo};
@@ -121,7 +121,8 @@ pub use engine::ternary;
 #[cfg(feature = "std")]
 pub use engine::threads;
 pub use engine::{Engine, MemberCounts, RuleCounts};
-pub use model::{count, limits, quota};
+pub use model::{count, limits, meter, quota};
 pub use model::{
-    Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Node, Rule, Vote, Wide,
+    Atom, Ballot, Coalition, Condition, Count1024, Counter, Error, Linear, Members, Meter, Node, Rule, Vote,
+    Wide,
 };

@@ -14,7 +14,7 @@
 //! O(n) conversions. Memory: the engine's scratch, in the chosen count type.
 
 use clout_core::planner::{self, Plan};
-use clout_core::{analyze_with, Counter, Engine, Error, Rule, Wide};
+use clout_core::{analyze_metered, Counter, Engine, Error, Meter, Options, Rule, Wide};
 
 /// Exact figures for one member.
 #[derive(Clone, Debug, PartialEq)]
@@ -143,17 +143,38 @@ pub fn choose_within<W: AsRef<[u64]>>(rule: &Rule<W>, budget: u128, memory: u64)
     Ok(plan)
 }
 
-/// Counts `rule` exactly with `engine` (see [`choose`]).
+/// Counts `rule` exactly with `engine` (see [`choose`]), with no step
+/// budget and the default memory limit.
 pub fn power<W: AsRef<[u64]>>(rule: &Rule<W>, engine: Engine) -> Result<Power, Error> {
+    power_metered(rule, engine, &Meter::new(u128::MAX, planner::DEFAULT_MEMORY))
+}
+
+/// [`power`] charging `meter` as the engine runs: its memory limit bounds
+/// the engine's tables and its budget the steps, as they are spent.
+pub fn power_metered<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    engine: Engine,
+    meter: &Meter<'_>,
+) -> Result<Power, Error> {
     match limbs_for(rule.members()) {
-        16 => power_in::<_, Wide<16>>(rule, engine),
-        64 => power_in::<_, Wide<64>>(rule, engine),
-        _ => power_in::<_, Wide<1025>>(rule, engine),
+        16 => power_in::<_, Wide<16>>(rule, engine, meter),
+        64 => power_in::<_, Wide<64>>(rule, engine, meter),
+        _ => power_in::<_, Wide<1025>>(rule, engine, meter),
     }
 }
 
-fn power_in<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>, engine: Engine) -> Result<Power, Error> {
-    let analysis = analyze_with::<_, C>(rule, engine)?;
+fn power_in<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    engine: Engine,
+    meter: &Meter<'_>,
+) -> Result<Power, Error> {
+    let options = Options {
+        engine: Some(engine),
+        budget: u128::MAX,
+        memory: meter.memory(),
+        ..Options::default()
+    };
+    let analysis = analyze_metered::<_, C>(rule, &options, meter)?;
     let t = analysis.table();
     let members = (0..rule.members())
         .map(|i| MemberPower {

@@ -100,7 +100,11 @@ pub fn exact_power(
         plan.cost as f64
     );
     watch
-        .step(&label, || exact::power(rule, plan.engine))?
+        .step(&label, || {
+            // Charged as it runs: an estimate that was too low stops at the budget.
+            let meter = clout_core::Meter::new(budget, clout_core::planner::DEFAULT_MEMORY);
+            exact::power_metered(rule, plan.engine, &meter)
+        })?
         .map_err(|e| core_failure(name, e))
 }
 
@@ -108,7 +112,10 @@ pub fn exact_power(
 pub fn core_failure(name: &str, err: clout_core::Error) -> Failure {
     let failure = Failure::input(format!("rule `{name}`: {err}"));
     match err {
-        clout_core::Error::TooCostly { .. } => Failure {
+        clout_core::Error::TooCostly { .. }
+        | clout_core::Error::OverBudget { .. }
+        | clout_core::Error::MemoryLimit { .. }
+        | clout_core::Error::OutOfMemory { .. } => Failure {
             kind: FailureKind::Limit,
             ..failure.with_hint(
                 "raise the limit with --budget STEPS; members with identical weights \

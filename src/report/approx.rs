@@ -8,7 +8,10 @@
 //! the number of threads. Veto and dictator flags stay exact (one pass over
 //! the members).
 
-use clout_core::approx::{penrose_f64, sample_penrose, sample_shapley, Estimate, Sampling};
+use clout_core::approx::{
+    penrose_f64_metered, sample_penrose_metered, sample_shapley_metered, Estimate, Sampling,
+};
+use clout_core::Meter;
 use clout_dsl::CompiledRule;
 
 use super::Options;
@@ -38,10 +41,19 @@ pub struct Approximation {
     pub shapley_method: String,
 }
 
-/// Estimates every member's Penrose measure, Banzhaf and Shapley-Shubik index.
-pub fn approximate(rule: &CompiledRule, options: &Options) -> Result<Approximation, Failure> {
+/// Estimates every member's Penrose measure, Banzhaf and Shapley-Shubik
+/// index, charging `meter`: the Penrose part may spend half the budget, the
+/// Shapley-Shubik part the rest. Sampling that runs out of budget stops with
+/// the wider intervals reached, and says so; a budget too small for one
+/// batch of samples is an error.
+pub fn approximate(
+    rule: &CompiledRule,
+    options: &Options,
+    meter: &Meter<'_>,
+) -> Result<Approximation, Failure> {
     let r = &rule.rule;
-    let fail = |e: clout_core::Error| Failure::input(format!("rule `{}`: {e}", rule.name));
+    let fail = |e: clout_core::Error| super::core_failure(&rule.name, e);
+    let half = Meter::new(meter.budget() / 2, meter.memory());
     let s = Sampling {
         seed: options.seed,
         tolerance: options.tolerance,
@@ -49,13 +61,15 @@ pub fn approximate(rule: &CompiledRule, options: &Options) -> Result<Approximati
     };
     let (penrose, penrose_method) = match r.single_threshold() {
         Some((_, q)) if q < F64_TABLE => (
-            penrose_f64(r).map_err(fail)?,
+            penrose_f64_metered(r, meter).map_err(fail)?,
             "floating-point counting over sums (the bound is a worst-case rounding error)".to_string(),
         ),
         _ => {
-            let p = sample_penrose(r, &s).map_err(fail)?;
+            let p = sample_penrose_metered(r, &s, &half).map_err(fail)?;
             let note = if p.converged {
                 ""
+            } else if p.samples < s.max_samples {
+                " (the step budget ended sampling before the target half-width)"
             } else {
                 " (stopped before the target half-width)"
             };
@@ -68,16 +82,16 @@ pub fn approximate(rule: &CompiledRule, options: &Options) -> Result<Approximati
             )
         }
     };
-    let ss = sample_shapley(
-        r,
-        &Sampling {
-            max_samples: SHAPLEY_SAMPLES,
-            ..s
-        },
-    )
-    .map_err(fail)?;
+    meter.charge(half.spent()).map_err(fail)?;
+    let shapley_sampling = Sampling {
+        max_samples: SHAPLEY_SAMPLES,
+        ..s
+    };
+    let ss = sample_shapley_metered(r, &shapley_sampling, meter).map_err(fail)?;
     let note = if ss.converged {
         ""
+    } else if ss.samples < SHAPLEY_SAMPLES {
+        " (the step budget ended sampling before the target half-width)"
     } else {
         " (sample limit reached before the target half-width)"
     };

@@ -5,6 +5,7 @@
 //! Both visit every three-way profile of the member types, so they are
 //! refused above [`MAX_TERNARY_PROFILES`] profiles before any work.
 
+use clout_core::Meter;
 use clout_dsl::CompiledRule;
 
 use super::{interchangeable, Options};
@@ -24,7 +25,8 @@ pub struct Extras {
 
 impl Extras {
     /// Computes what `options` ask for, or refuses when it is too large.
-    pub fn of(rule: &CompiledRule, options: &Options) -> Result<Extras, Failure> {
+    /// The profiles are charged to `meter` as they are visited.
+    pub fn of(rule: &CompiledRule, options: &Options, meter: &Meter<'_>) -> Result<Extras, Failure> {
         if !options.ternary && options.attendance.is_none() {
             return Ok(Extras::default());
         }
@@ -39,14 +41,14 @@ impl Extras {
             ))
             .with_hint("--ternary and --attendance count every way of voting yes, no or abstaining; members with identical weights make that much cheaper"));
         }
-        let fail = |e: clout_core::Error| Failure::input(format!("rule `{}`: {e}", rule.name));
+        let fail = |e: clout_core::Error| super::core_failure(&rule.name, e);
         let r = &rule.rule;
         let ternary = if options.ternary {
             let measures = if r.members() < 600 {
-                clout_core::ternary::ternary_banzhaf::<_, clout_core::Wide<16>>(r)
+                clout_core::ternary::ternary_banzhaf_metered::<_, clout_core::Wide<16>>(r, meter)
                     .map(|t| (0..r.members()).map(|i| t.measure(i)).collect())
             } else {
-                clout_core::ternary::ternary_banzhaf::<_, clout_core::Wide<1025>>(r)
+                clout_core::ternary::ternary_banzhaf_metered::<_, clout_core::Wide<1025>>(r, meter)
                     .map(|t| (0..r.members()).map(|i| t.measure(i)).collect())
             };
             Some(measures.map_err(fail)?)
@@ -56,7 +58,7 @@ impl Extras {
         let attendance = match options.attendance {
             Some(p) => Some((
                 p,
-                clout_core::ternary::passage_with_attendance(r, p).map_err(fail)?,
+                clout_core::ternary::passage_with_attendance_metered(r, p, meter).map_err(fail)?,
             )),
             None => None,
         };

@@ -20,6 +20,7 @@ mod approx;
 mod extras;
 pub mod rounding;
 
+use clout_core::Meter;
 use clout_dsl::exact::{self, Power};
 use clout_dsl::{CompiledRule, RuleFile};
 use serde::Serialize;
@@ -250,7 +251,10 @@ pub fn plan(rule: &CompiledRule, options: &Options) -> Result<Method, Failure> {
 fn fallback(rule: &CompiledRule, options: &Options, err: clout_core::Error) -> Result<Method, Failure> {
     let over = matches!(
         err,
-        clout_core::Error::TooCostly { .. } | clout_core::Error::MemoryLimit { .. }
+        clout_core::Error::TooCostly { .. }
+            | clout_core::Error::MemoryLimit { .. }
+            | clout_core::Error::OverBudget { .. }
+            | clout_core::Error::OutOfMemory { .. }
     );
     if over && !options.exact && options.engine.is_none() {
         Ok(Method::Approximate { reason: reason(err) })
@@ -265,28 +269,50 @@ pub fn report(file: &RuleFile, rule: &CompiledRule, options: &Options) -> Result
     build(file, rule, &method, options)
 }
 
-/// Runs `method` and assembles the report. Exact counting that hits a limit
-/// while it runs falls back to approximation as [`plan`] would.
+/// Runs `method` and assembles the report, within `options.budget` steps
+/// and `options.memory` bytes as it runs (see [`build_metered`]).
 pub fn build(
     file: &RuleFile,
     rule: &CompiledRule,
     method: &Method,
     options: &Options,
 ) -> Result<Report, Failure> {
+    build_metered(
+        file,
+        rule,
+        method,
+        options,
+        &Meter::new(options.budget, options.memory),
+    )
+}
+
+/// [`build`] charging `meter` (the caller's limits, cancellation flag and
+/// progress) in every part: the extras, the exact engine, the
+/// approximation. Exact counting that hits a limit while it runs falls back
+/// to approximation as [`plan`] would, with the step count started again.
+pub fn build_metered(
+    file: &RuleFile,
+    rule: &CompiledRule,
+    method: &Method,
+    options: &Options,
+    meter: &Meter<'_>,
+) -> Result<Report, Failure> {
     check_options(options)?;
-    let extras = extras::Extras::of(rule, options)?;
+    let extras = extras::Extras::of(rule, options, meter)?;
+    meter.restart();
     let figures = match method {
-        Method::Exact { engine, .. } => match exact::power(&rule.rule, *engine) {
+        Method::Exact { engine, .. } => match exact::power_metered(&rule.rule, *engine, meter) {
             Ok(p) => Figures::Exact(p),
             Err(e) => match fallback(rule, options, e)? {
                 Method::Approximate { reason } => {
-                    Figures::Approximate(approx::approximate(rule, options)?, reason)
+                    meter.restart();
+                    Figures::Approximate(approx::approximate(rule, options, meter)?, reason)
                 }
                 Method::Exact { .. } => return Err(core_failure(&rule.name, e)),
             },
         },
         Method::Approximate { reason } => {
-            Figures::Approximate(approx::approximate(rule, options)?, reason.clone())
+            Figures::Approximate(approx::approximate(rule, options, meter)?, reason.clone())
         }
     };
     Ok(assemble(file, rule, &figures, &extras))
@@ -481,6 +507,14 @@ pub fn reason(err: clout_core::Error) -> String {
             steps(estimate),
             steps(budget)
         ),
+        clout_core::Error::OverBudget { budget } => format!(
+            "the exact engine used up the budget of {} steps before it finished",
+            steps(budget)
+        ),
+        clout_core::Error::OutOfMemory { bytes: b } => format!(
+            "the system refused {} of memory to the exact engine, within the memory limit",
+            bytes(b)
+        ),
         other => other.to_string(),
     }
 }
@@ -488,7 +522,10 @@ pub fn reason(err: clout_core::Error) -> String {
 /// The core's refusal of rule `name` as a [`Failure`] with a hint.
 pub fn core_failure(name: &str, err: clout_core::Error) -> Failure {
     let (kind, hint) = match err {
-        clout_core::Error::TooCostly { .. } | clout_core::Error::MemoryLimit { .. } => (
+        clout_core::Error::TooCostly { .. }
+        | clout_core::Error::MemoryLimit { .. }
+        | clout_core::Error::OverBudget { .. }
+        | clout_core::Error::OutOfMemory { .. } => (
             FailureKind::Limit,
             Some(
                 "raise the limits with --budget STEPS (5e10 steps take about a minute) or --memory BYTES, \
@@ -509,9 +546,12 @@ pub fn core_failure(name: &str, err: clout_core::Error) -> Failure {
     }
 }
 
-/// A step count: in full below a million, else as `1.2e9`.
+/// A step count: in full below a million, else as `1.2e9`; a saturated
+/// estimate as "more than 10^38", never as its saturated value.
 pub fn steps(n: u128) -> String {
-    if n < 1_000_000 {
+    if n == u128::MAX {
+        "more than 10^38".to_string()
+    } else if n < 1_000_000 {
         n.to_string()
     } else {
         format!("{:.1e}", n as f64)

@@ -3,7 +3,8 @@
 //!
 //! Time and memory are the chosen engine's, within [`Options::budget`]
 //! steps and [`Options::memory`] bytes as estimated before anything is
-//! allocated; this layer adds O(n) for the result vector. Counts are exact
+//! allocated, and charged to a [`Meter`] while the engine runs; this layer
+//! adds O(n) for the result vector. Counts are exact
 //! in the caller's [`Counter`] (overflow is [`Error::CountOverflow`]).
 
 use alloc::vec::Vec;
@@ -13,6 +14,7 @@ use crate::analysis::power::PowerTable;
 use crate::engine::{self, Engine, MemberCounts, RuleCounts, Scope};
 use crate::model::count::Counter;
 use crate::model::error::Error;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// Exact counts for a rule and its members, with the plan that made them.
@@ -77,10 +79,24 @@ pub fn analyze_with<W: AsRef<[u64]>, C: Counter>(
     )
 }
 
-/// Plans (or takes the forced engine) and counts, as `options` say.
+/// Plans (or takes the forced engine) and counts, as `options` say, with
+/// a [`Meter`] of `options.budget` steps and `options.memory` bytes.
 pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     options: &Options,
+) -> Result<Analysis<C>, Error> {
+    analyze_metered(rule, options, &Meter::new(options.budget, options.memory))
+}
+
+/// [`analyze_opts`] charging `meter` while the engine runs (the caller's
+/// budget, memory limit, cancellation flag and progress). The plan is
+/// checked against `options` first; the meter then stops the run at the
+/// first charge past its own limits, so an estimate that was too low cannot
+/// take more than the meter allows.
+pub fn analyze_metered<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    options: &Options,
+    meter: &Meter<'_>,
 ) -> Result<Analysis<C>, Error> {
     let limits = Limits {
         budget: options.budget,
@@ -121,7 +137,8 @@ pub fn analyze_opts<W: AsRef<[u64]>, C: Counter>(
             p
         }
     };
-    let (totals, members) = engine::count_allocating(rule, plan.engine, options.scope)?;
+    meter.expect(plan.cost);
+    let (totals, members) = engine::count_allocating(rule, plan.engine, options.scope, meter)?;
     Ok(Analysis {
         rule: totals,
         members,

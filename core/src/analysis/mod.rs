@@ -17,5 +17,5 @@ pub mod planner;
 pub mod power;
 
 #[cfg(feature = "alloc")]
-pub use analyze::{analyze, analyze_opts, analyze_with, Analysis, Options};
+pub use analyze::{analyze, analyze_metered, analyze_opts, analyze_with, Analysis, Options};
 pub use power::PowerTable;

@@ -38,6 +38,7 @@ use alloc::vec::Vec;
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// An approximate figure: `value ± half_width`.
@@ -180,7 +181,19 @@ fn wilson(hits: u64, n: u64, z: f64) -> Estimate {
 
 /// Runs batches until every member's interval meets the tolerance.
 /// `batch(rng, counts)` adds one batch's hits into `counts`.
-fn sample_rounds<F>(n: usize, s: &Sampling, batch: F) -> SampledPower
+///
+/// Each round is charged to `meter` before it runs, `per_sample` steps a
+/// sample; rounds shrink to what the budget still allows. When not one
+/// more batch fits, sampling stops with the intervals reached so far
+/// (`converged` false), or with [`Error::OverBudget`] when not even the
+/// first batch fits. Cancellation stops it with [`Error::Cancelled`].
+fn sample_rounds<F>(
+    n: usize,
+    s: &Sampling,
+    per_sample: u64,
+    meter: &Meter<'_>,
+    batch: F,
+) -> Result<SampledPower, Error>
 where
     F: Fn(&mut Rng, &mut [u64]) + Sync,
 {
@@ -188,21 +201,41 @@ where
     let mut hits = vec![0u64; n];
     let mut drawn = 0u64;
     let mut next_batch = 0u64;
+    let per_batch = per_sample.saturating_mul(BATCH).max(1);
+    meter.expect(u128::from(per_sample) * u128::from(s.max_samples));
     loop {
+        let left = meter.budget().saturating_sub(u128::from(meter.spent()));
+        let affordable = u64::try_from(left / u128::from(per_batch)).unwrap_or(u64::MAX);
         let round = ROUND
             .min(s.max_samples.saturating_sub(drawn).div_ceil(BATCH))
+            .min(affordable)
             .max(1);
+        if let Err(e) = meter.charge(round.saturating_mul(per_batch)) {
+            if e == (Error::OverBudget {
+                budget: meter.budget(),
+            }) && drawn > 0
+            {
+                let members: Vec<Estimate> = hits.iter().map(|&h| wilson(h, drawn, z)).collect();
+                let converged = members.iter().all(|e| e.half_width <= s.tolerance);
+                return Ok(SampledPower {
+                    members,
+                    samples: drawn,
+                    converged,
+                });
+            }
+            return Err(e);
+        }
         run_round(n, s, next_batch, round, &batch, &mut hits);
         next_batch += round;
         drawn += round * BATCH;
         let members: Vec<Estimate> = hits.iter().map(|&h| wilson(h, drawn, z)).collect();
         let converged = members.iter().all(|e| e.half_width <= s.tolerance);
         if converged || drawn >= s.max_samples {
-            return SampledPower {
+            return Ok(SampledPower {
                 members,
                 samples: drawn,
                 converged,
-            };
+            });
         }
     }
 }
@@ -269,13 +302,26 @@ where
 /// Monte Carlo estimate of every member's Penrose measure (absolute
 /// Banzhaf: the chance of being a swing).
 pub fn sample_penrose<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> Result<SampledPower, Error> {
+    sample_penrose_metered(rule, s, &Meter::unlimited())
+}
+
+/// [`sample_penrose`] charging `meter` round by round (see the module docs):
+/// a budget too small for the target half-width ends sampling early, with
+/// the wider intervals reached.
+pub fn sample_penrose_metered<W: AsRef<[u64]> + Sync>(
+    rule: &Rule<W>,
+    s: &Sampling,
+    meter: &Meter<'_>,
+) -> Result<SampledPower, Error> {
     let n = rule.members();
     let attributes = rule.attributes();
     let words = n.div_ceil(64);
     if let Some((attr, _)) = rule.single_threshold() {
-        return Ok(sample_penrose_threshold(rule, attr, s));
+        return sample_penrose_threshold(rule, attr, s, meter);
     }
-    Ok(sample_rounds(n, s, |rng, hits| {
+    let per_sample =
+        (n as u64).saturating_mul(attributes as u64 + 2 + (rule.atoms().len() + rule.formula().len()) as u64);
+    sample_rounds(n, s, per_sample, meter, |rng, hits| {
         let mut yes = vec![0u64; words];
         for _ in 0..BATCH {
             for w in yes.iter_mut() {
@@ -307,7 +353,7 @@ pub fn sample_penrose<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> R
                 }
             }
         }
-    }))
+    })
 }
 
 /// The one-threshold case: sums by byte-wide lookup tables, and the swings
@@ -317,7 +363,8 @@ fn sample_penrose_threshold<W: AsRef<[u64]> + Sync>(
     rule: &Rule<W>,
     attr: usize,
     s: &Sampling,
-) -> SampledPower {
+    meter: &Meter<'_>,
+) -> Result<SampledPower, Error> {
     let n = rule.members();
     let q = rule.single_threshold().map_or(0, |(_, q)| q);
     let weights = rule.attribute_weights(attr);
@@ -337,7 +384,8 @@ fn sample_penrose_threshold<W: AsRef<[u64]> + Sync>(
         }
     }
     let words = n.div_ceil(64);
-    let mut est = sample_rounds(n, s, |rng, hits| {
+    let per_sample = n as u64 + 8;
+    let mut est = sample_rounds(n, s, per_sample, meter, |rng, hits| {
         let mut yes = vec![0u64; words];
         for _ in 0..BATCH {
             let mut total = 0u64;
@@ -371,7 +419,7 @@ fn sample_penrose_threshold<W: AsRef<[u64]> + Sync>(
                 }
             }
         }
-    });
+    })?;
     // Back to member order.
     let mut members = vec![
         Estimate {
@@ -384,12 +432,22 @@ fn sample_penrose_threshold<W: AsRef<[u64]> + Sync>(
         members[i] = est.members[p];
     }
     est.members = members;
-    est
+    Ok(est)
 }
 
 /// Monte Carlo estimate of every member's Shapley-Shubik index: draw
 /// orderings, add members until the rule passes, count the pivot.
 pub fn sample_shapley<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> Result<SampledPower, Error> {
+    sample_shapley_metered(rule, s, &Meter::unlimited())
+}
+
+/// [`sample_shapley`] charging `meter` round by round, as
+/// [`sample_penrose_metered`] does.
+pub fn sample_shapley_metered<W: AsRef<[u64]> + Sync>(
+    rule: &Rule<W>,
+    s: &Sampling,
+    meter: &Meter<'_>,
+) -> Result<SampledPower, Error> {
     let n = rule.members();
     let attributes = rule.attributes();
     let empty = [0u64; MAX_ATTRIBUTES];
@@ -407,7 +465,10 @@ pub fn sample_shapley<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> R
             converged: true,
         });
     }
-    Ok(sample_rounds(n, s, |rng, hits| {
+    // An ordering adds members until the rule passes: at most n of them.
+    let per_sample =
+        (n as u64).saturating_mul(attributes as u64 + 2 + (rule.atoms().len() + rule.formula().len()) as u64);
+    sample_rounds(n, s, per_sample, meter, |rng, hits| {
         let mut perm: Vec<usize> = (0..n).collect();
         for _ in 0..BATCH {
             let mut sums = [0u64; MAX_ATTRIBUTES];
@@ -424,7 +485,7 @@ pub fn sample_shapley<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> R
                 }
             }
         }
-    }))
+    })
 }
 
 /// Penrose measures of a one-threshold rule in floating point: the dense
@@ -437,6 +498,15 @@ pub fn sample_shapley<W: AsRef<[u64]> + Sync>(rule: &Rule<W>, s: &Sampling) -> R
 /// factors), and the division adds at most 2 (n + 1) ε max F per step of
 /// its recurrence, over at most q / w + 1 steps.
 pub fn penrose_f64<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Vec<Estimate>, Error> {
+    penrose_f64_metered(rule, &Meter::unlimited())
+}
+
+/// [`penrose_f64`] with its two tables claimed from `meter` and every
+/// member's pass over them charged (q steps each).
+pub fn penrose_f64_metered<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    meter: &Meter<'_>,
+) -> Result<Vec<Estimate>, Error> {
     let (attr, q) = rule.single_threshold().ok_or(Error::EngineUnsuitable {
         engine: Engine::Dense,
     })?;
@@ -462,11 +532,33 @@ pub fn penrose_f64<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Vec<Estimate>, Err
             budget: 1 << 31,
         });
     }
+    meter.expect(2 * n as u128 * q as u128);
+    let table = Meter::bytes_of::<f64>(q).saturating_mul(2);
     // f[s] = P(sum = s) for s < q; sums at or above q are not needed.
-    let mut f = vec![0.0f64; q];
-    let mut next = vec![0.0f64; q];
+    let f = meter.vec(q, 0.0f64)?;
+    let out = match meter.vec(q, 0.0f64) {
+        Ok(next) => penrose_tables(weights, q, f, next, meter),
+        Err(e) => {
+            meter.release(Meter::bytes_of::<f64>(q));
+            return Err(e);
+        }
+    };
+    meter.release(table);
+    out
+}
+
+/// The body of [`penrose_f64_metered`] over its claimed tables.
+fn penrose_tables(
+    weights: &[u64],
+    q: usize,
+    mut f: Vec<f64>,
+    mut next: Vec<f64>,
+    meter: &Meter<'_>,
+) -> Result<Vec<Estimate>, Error> {
+    let n = weights.len();
     f[0] = 1.0;
     for &w in weights {
+        meter.charge(q as u64)?;
         let w = w as usize;
         if w >= q {
             for x in f.iter_mut() {
@@ -495,6 +587,7 @@ pub fn penrose_f64<W: AsRef<[u64]>>(rule: &Rule<W>) -> Result<Vec<Estimate>, Err
             out[i] = e;
             continue;
         }
+        meter.charge(q as u64)?;
         let w = wi as usize;
         let e = if w == 0 {
             Estimate {
@@ -626,7 +719,7 @@ mod tests {
 
     /// Exact counts of every member by `engine`.
     fn exact(rule: &Rule<Vec<u64>>, engine: Engine) -> Vec<MemberCounts<Count1024>> {
-        count_allocating::<_, Count1024>(rule, engine, Scope::All)
+        count_allocating::<_, Count1024>(rule, engine, Scope::All, &crate::model::meter::Meter::unlimited())
             .unwrap()
             .1
     }

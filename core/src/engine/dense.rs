@@ -40,6 +40,7 @@ use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// Largest table (in counts) the engine will plan for.
@@ -145,7 +146,7 @@ impl Counting for Dense {
 
     fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
         let all = job.scope == Scope::All;
-        let mut out = count(job.rule, job.members, job.work, all)?;
+        let mut out = count(job.rule, job.members, job.work, all, job.meter)?;
         // Without sizes the single-attribute paths count no pivots; the
         // compound path does, but only `All` promises them.
         out.shapley_shubik = all;
@@ -230,12 +231,14 @@ fn build<W: AsRef<[u64]>, C: Counter>(
     sp: &Space,
     table: &mut [C],
     skip: Option<usize>,
+    meter: &Meter<'_>,
 ) -> Result<(), Error> {
     for c in table.iter_mut() {
         *c = C::ZERO;
     }
     table[0] = C::ONE;
     for (filled, i) in (0..rule.members()).filter(|&i| Some(i) != skip).enumerate() {
+        meter.charge(((filled + 1) * sp.per_row * sp.dims) as u64)?;
         multiply(table, sp.per_row, filled, |s| sp.shifted(rule, s, i))?;
     }
     Ok(())
@@ -253,6 +256,7 @@ fn count_single<W: AsRef<[u64]>, C: Counter>(
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
     sizes: bool,
+    meter: &Meter<'_>,
 ) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     let attr = sp.attrs[0];
@@ -266,6 +270,8 @@ fn count_single<W: AsRef<[u64]>, C: Counter>(
     let total = rule.total(attr);
     #[cfg(feature = "alloc")]
     if !sizes {
+        // The residue passes run on worker threads; charged at their estimate up front.
+        meter.charge(u64::try_from(cost(rule, false)?).unwrap_or(u64::MAX))?;
         let mut out = super::residue::count(rule, attr, cap, first_win, &types, members)?;
         out.smallest_winning = greedy_smallest(rule, attr, types.order, first_win, p);
         return Ok(out);
@@ -279,6 +285,7 @@ fn count_single<W: AsRef<[u64]>, C: Counter>(
     }
     table[0] = C::ONE;
     for (filled, i) in (0..n).enumerate() {
+        meter.charge(((filled + 1) * p) as u64)?;
         let w = rule.weight(attr, i) as usize;
         if sizes {
             // The same product as `multiply`, written out: through the shared
@@ -335,6 +342,7 @@ fn count_single<W: AsRef<[u64]>, C: Counter>(
 
     let (prev, cur) = scratch.split_at_mut(p);
     for t in 0..types.count {
+        meter.charge((rows * p) as u64)?;
         let w = rule.weight(attr, types.representative(t)) as usize;
         for c in pivots.iter_mut() {
             *c = C::ZERO;
@@ -452,10 +460,11 @@ fn count<W: AsRef<[u64]>, C: Counter>(
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
     sizes: bool,
+    meter: &Meter<'_>,
 ) -> Result<RuleCounts<C>, Error> {
     let sp = space(rule)?;
     if sp.dims == 1 {
-        return count_single(rule, &sp, members, work, sizes);
+        return count_single(rule, &sp, members, work, sizes, meter);
     }
     let n = rule.members();
     let attributes = rule.attributes();
@@ -483,7 +492,7 @@ fn count<W: AsRef<[u64]>, C: Counter>(
     };
 
     // Rule-level figures from the full distribution.
-    build(rule, &sp, table, None)?;
+    build(rule, &sp, table, None, meter)?;
     let mut out = RuleCounts::<C>::start(n, Engine::Dense, false);
     for k in 0..=n {
         for s in 0..p {
@@ -512,7 +521,7 @@ fn count<W: AsRef<[u64]>, C: Counter>(
             *c = C::ZERO;
         }
         // Rebuild without one member of this type, then test every state.
-        build(rule, &sp, table, Some(rep))?;
+        build(rule, &sp, table, Some(rep), meter)?;
         for k in 0..n {
             for s in 0..p {
                 let c = table[k * p + s];
@@ -558,9 +567,9 @@ mod tests {
             let atoms = [Atom { attribute: 0, quota: q }, Atom { attribute: 0, quota: q / 2 + 1 }];
             let f: &[Node] = if two { &[Node::Atom(0), Node::Atom(1), Node::Any(2)] } else { &[Node::Atom(0)] };
             let rule = Rule::new(n, w.clone(), &atoms, f).unwrap();
-            let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+            let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All, &crate::model::meter::Meter::unlimited()).unwrap();
             for scope in [Scope::All, Scope::Swings] {
-                let (got, members) = count_allocating::<_, u128>(&rule, Engine::Dense, scope).unwrap();
+                let (got, members) = count_allocating::<_, u128>(&rule, Engine::Dense, scope, &crate::model::meter::Meter::unlimited()).unwrap();
                 prop_assert_eq!(got.winning, oracle.winning);
                 prop_assert_eq!(got.losing, oracle.losing);
                 prop_assert_eq!(got.proper, oracle.proper);

@@ -24,6 +24,7 @@ use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// Most members the enumeration engine accepts.
@@ -62,7 +63,7 @@ impl Counting for Enumeration {
     }
 
     fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
-        count(job.rule, job.members, job.work)
+        count(job.rule, job.members, job.work, job.meter)
     }
 }
 
@@ -105,8 +106,12 @@ fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
+    meter: &Meter<'_>,
 ) -> Result<RuleCounts<C>, Error> {
     let n = check(rule)?;
+    // Charged every CHUNK coalitions, in the units of the cost estimate.
+    const CHUNK: u64 = 4096;
+    let per = (n as u64 + 2) * (rule.atoms().len() + rule.formula().len()) as u64;
     let (pivots, rest) = work.counts.split_at_mut(n * n);
     let (by_kappa, rest) = rest.split_at_mut(n * n);
     let minimal_by_size = &mut rest[..n * n];
@@ -129,6 +134,9 @@ fn count<W: AsRef<[u64]>, C: Counter>(
     let mut mask: u64 = 0;
     let steps: u64 = 1 << n;
     for step in 0..steps {
+        if step % CHUNK == 0 {
+            meter.charge(per * CHUNK.min(steps - step))?;
+        }
         if step > 0 {
             // Gray code: flip the member at the lowest set bit of `step`.
             let i = step.trailing_zeros() as usize;

@@ -46,11 +46,12 @@ pub use crate::model::engine_id::Engine;
 pub use counts::{MemberCounts, RuleCounts};
 
 #[cfg(feature = "alloc")]
-use alloc::{vec, vec::Vec};
+use alloc::vec::Vec;
 
 use crate::model::count::Counter;
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 use pivots::factorial;
 use registry::{ask, Cost, Job, Scratch, Tables};
@@ -153,6 +154,21 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
 ) -> Result<RuleCounts<C>, Error> {
+    try_count_metered(rule, engine, scope, members, work, &Meter::unlimited())
+}
+
+/// [`try_count_for`] charging `meter` as the engine runs: it stops with
+/// [`Error::OverBudget`], [`Error::MemoryLimit`], [`Error::OutOfMemory`]
+/// or [`Error::Cancelled`] at the first charge past a limit. The meter's
+/// progress is expected to reach the engine's [`cost_for`] estimate.
+pub fn try_count_metered<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    engine: Engine,
+    scope: Scope,
+    members: &mut [MemberCounts<C>],
+    work: Workspace<'_, C>,
+    meter: &Meter<'_>,
+) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     if members.len() < n {
         return Err(Error::ScratchTooSmall {
@@ -185,6 +201,7 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
             scope,
             members: &mut *members,
             work,
+            meter,
         },
     )?;
     mark_veto_and_dictators(rule, members);
@@ -199,17 +216,20 @@ pub(crate) fn count_allocating<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     engine: Engine,
     scope: Scope,
+    meter: &Meter<'_>,
 ) -> Result<(RuleCounts<C>, Vec<MemberCounts<C>>), Error> {
     let need = need_for(rule, engine, scope)?;
-    let mut counts = vec![C::ZERO; need.counts];
-    let mut indices = vec![0u32; need.indices];
-    let mut members = vec![MemberCounts::EMPTY; rule.members()];
+    let mut counts = meter.vec(need.counts, C::ZERO)?;
+    let mut indices = meter.vec(need.indices, 0u32)?;
+    let mut members = meter.vec(rule.members(), MemberCounts::EMPTY)?;
     let work = Workspace {
         counts: &mut counts,
         indices: &mut indices,
     };
-    let totals = try_count_for(rule, engine, scope, &mut members, work)?;
-    Ok((totals, members))
+    let totals = try_count_metered(rule, engine, scope, &mut members, work, meter);
+    meter.release(Meter::bytes_of::<C>(need.counts));
+    meter.release(Meter::bytes_of::<u32>(need.indices));
+    Ok((totals?, members))
 }
 
 /// Veto: the rule fails when everyone but the member votes yes.

@@ -31,6 +31,7 @@ use crate::model::count::{binomial, Counter};
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// Most types the profile engine accepts.
@@ -123,7 +124,7 @@ impl Counting for Profiles {
     }
 
     fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
-        count(job.rule, job.members, job.work)
+        count(job.rule, job.members, job.work, job.meter)
     }
 }
 
@@ -131,6 +132,7 @@ fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
+    meter: &Meter<'_>,
 ) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     let attributes = rule.attributes();
@@ -194,7 +196,15 @@ fn count<W: AsRef<[u64]>, C: Counter>(
         s
     };
 
+    // Charged every CHUNK profiles, in the units of the cost estimate.
+    const CHUNK: u64 = 1024;
+    let per = (2 * t_count as u64 + 2) * (rule.atoms().len() + rule.formula().len()) as u64;
+    let mut visited: u64 = 0;
     loop {
+        if visited % CHUNK == 0 {
+            meter.charge(per * CHUNK)?;
+        }
+        visited += 1;
         let mult = products[t_count];
         let win = passes(&sums);
         let mut complement = [0u64; MAX_ATTRIBUTES];

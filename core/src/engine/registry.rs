@@ -27,6 +27,7 @@ use crate::engine::{dense, diagram, enumerate, profile, Need, Scope, Workspace};
 use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// One exact counting engine, as the planner sees it.
@@ -195,6 +196,8 @@ pub(crate) struct Job<'a, W: AsRef<[u64]>, C> {
     pub members: &'a mut [MemberCounts<C>],
     /// Scratch of at least the engine's [`Counting::scratch`].
     pub work: Workspace<'a, C>,
+    /// What the run may spend; the engine charges it as it goes.
+    pub meter: &'a Meter<'a>,
 }
 
 impl<W: AsRef<[u64]>, C: Counter> Question for Job<'_, W, C> {

@@ -370,8 +370,20 @@ mod tests {
         let w: Vec<u64> = (0..210).map(|i| 1 + i % 3).collect();
         for q in [1u64, 150, 211, 300, 420] {
             let rule = Rule::weighted(q, w.clone()).unwrap();
-            let exact = count_allocating::<_, Count1024>(&rule, Engine::Profile, Scope::All).unwrap();
-            let fast = count_allocating::<_, Count1024>(&rule, Engine::Dense, Scope::Swings).unwrap();
+            let exact = count_allocating::<_, Count1024>(
+                &rule,
+                Engine::Profile,
+                Scope::All,
+                &crate::model::meter::Meter::unlimited(),
+            )
+            .unwrap();
+            let fast = count_allocating::<_, Count1024>(
+                &rule,
+                Engine::Dense,
+                Scope::Swings,
+                &crate::model::meter::Meter::unlimited(),
+            )
+            .unwrap();
             assert_eq!(fast.0.winning, exact.0.winning, "q = {q}");
             assert_eq!(fast.0.losing, exact.0.losing);
             assert_eq!((fast.0.proper, fast.0.strong), (exact.0.proper, exact.0.strong));

@@ -40,6 +40,7 @@ use crate::engine::member_types::Types;
 use crate::model::count::{binomial, Counter};
 use crate::model::error::Error;
 use crate::model::limits::MAX_ATTRIBUTES;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 
 /// Most profiles the functions here will visit.
@@ -77,10 +78,7 @@ fn grouped<'a, W: AsRef<[u64]>>(
     starts: &'a mut [u32],
 ) -> Result<Types<'a>, Error> {
     let types = Types::group(rule, rule.used_attributes(), order, starts);
-    let profiles = (0..types.count).fold(1u128, |p, t| {
-        let c = types.size(t) as u128;
-        p.saturating_mul((c + 1) * (c + 2) / 2)
-    });
+    let profiles = profiles_of(&types);
     if profiles > MAX_PROFILES {
         return Err(Error::TooCostly {
             estimate: profiles,
@@ -90,11 +88,20 @@ fn grouped<'a, W: AsRef<[u64]>>(
     Ok(types)
 }
 
+/// Three-way profiles Π (c_t + 1)(c_t + 2)/2 of `types` (saturating).
+fn profiles_of(types: &Types<'_>) -> u128 {
+    (0..types.count).fold(1u128, |p, t| {
+        let c = types.size(t) as u128;
+        p.saturating_mul((c + 1) * (c + 2) / 2)
+    })
+}
+
 /// Visits every three-way profile (y_t, a_t, n_t) of the types, calling
 /// `visit(digits, yes, no, abstain)` with the group sums of each attribute.
 fn for_each_profile<W: AsRef<[u64]>>(
     rule: &Rule<W>,
     types: &Types<'_>,
+    meter: &Meter<'_>,
     mut visit: impl FnMut(&[(usize, usize)], &[u64], &[u64], &[u64]) -> Result<(), Error>,
 ) -> Result<(), Error> {
     let attributes = rule.attributes();
@@ -122,7 +129,18 @@ fn for_each_profile<W: AsRef<[u64]>>(
             ab[a] = b;
         }
     };
+    // Charged every CHUNK profiles: the group sums, the formula and, for
+    // the ternary measure, one more evaluation per type.
+    const CHUNK: u64 = 1024;
+    let per = (attributes as u64 + 1) * (2 * t_count as u64 + 1)
+        + (rule.atoms().len() + rule.formula().len()) as u64;
+    meter.expect(u128::from(per).saturating_mul(profiles_of(types)));
+    let mut visited: u64 = 0;
     loop {
+        if visited % CHUNK == 0 {
+            meter.charge(per * CHUNK)?;
+        }
+        visited += 1;
         sums(&digits, &mut yes, &mut no, &mut abstain);
         visit(
             &digits,
@@ -154,6 +172,14 @@ fn for_each_profile<W: AsRef<[u64]>>(
 
 /// Exact ternary swing counts of every member.
 pub fn ternary_banzhaf<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<TernaryPower<C>, Error> {
+    ternary_banzhaf_metered(rule, &Meter::unlimited())
+}
+
+/// [`ternary_banzhaf`] charging `meter` for every batch of profiles visited.
+pub fn ternary_banzhaf_metered<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    meter: &Meter<'_>,
+) -> Result<TernaryPower<C>, Error> {
     let n = rule.members();
     let (mut order, mut starts) = (vec![0u32; rule.members()], vec![0u32; rule.members() + 1]);
     let types = grouped(rule, &mut order, &mut starts)?;
@@ -166,7 +192,7 @@ pub fn ternary_banzhaf<W: AsRef<[u64]>, C: Counter>(rule: &Rule<W>) -> Result<Te
         .collect::<Result<_, _>>()?;
     let mut per_type = vec![C::ZERO; types.count];
     let attributes = rule.attributes();
-    for_each_profile(rule, &types, |digits, yes, no, abstain| {
+    for_each_profile(rule, &types, meter, |digits, yes, no, abstain| {
         if !rule.passes_with_group_sums(yes, no, abstain) {
             return Ok(());
         }
@@ -223,6 +249,15 @@ fn ln_power(p: f64, k: usize) -> f64 {
 /// Probability that the rule passes when each member is present with
 /// chance `attendance` and then votes yes or no with equal chance.
 pub fn passage_with_attendance<W: AsRef<[u64]>>(rule: &Rule<W>, attendance: f64) -> Result<f64, Error> {
+    passage_with_attendance_metered(rule, attendance, &Meter::unlimited())
+}
+
+/// [`passage_with_attendance`] charging `meter` for every batch of profiles visited.
+pub fn passage_with_attendance_metered<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    attendance: f64,
+    meter: &Meter<'_>,
+) -> Result<f64, Error> {
     if !(0.0..=1.0).contains(&attendance) {
         return Err(Error::BadFraction {
             numerator: (attendance * 1000.0) as u64,
@@ -236,7 +271,7 @@ pub fn passage_with_attendance<W: AsRef<[u64]>>(rule: &Rule<W>, attendance: f64)
     let mut total = 0.0;
     // Reuse the three-way profiles: the middle group stands for absent here.
     let empty = [0u64; MAX_ATTRIBUTES];
-    for_each_profile(rule, &types, |digits, yes, no, absent_sums| {
+    for_each_profile(rule, &types, meter, |digits, yes, no, absent_sums| {
         let _ = absent_sums;
         if !rule.passes_with_group_sums(yes, no, &empty[..yes.len()]) {
             return Ok(());
@@ -341,7 +376,7 @@ mod tests {
             prop_assert!((fast - total).abs() < 1e-12, "{} vs {}", fast, total);
             // Full attendance is the binary game's probability of passage.
             if p == 1.0 {
-                let (binary, _) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+                let (binary, _) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All, &crate::model::meter::Meter::unlimited()).unwrap();
                 prop_assert!((fast - binary.passage_probability()).abs() < 1e-12);
             }
         }

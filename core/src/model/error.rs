@@ -62,6 +62,22 @@ pub enum Error {
     BallotOverlap { member: usize },
     /// The computation would need more memory than the caller allows.
     MemoryLimit { needed: u64, limit: u64 },
+    /// A running computation charged more steps than its [`crate::Meter`]'s budget.
+    OverBudget { budget: u128 },
+    /// The computation was cancelled through its [`crate::Meter`]'s flag.
+    Cancelled,
+    /// The system allocator refused `bytes` bytes (within the memory limit).
+    OutOfMemory { bytes: u64 },
+}
+
+/// Writes `steps` for a message: "more than 10^38" for a saturated
+/// estimate, never the saturated number itself.
+fn write_steps(f: &mut fmt::Formatter<'_>, steps: u128) -> fmt::Result {
+    if steps == u128::MAX {
+        write!(f, "more than 10^38")
+    } else {
+        write!(f, "{steps}")
+    }
 }
 
 impl fmt::Display for Error {
@@ -114,13 +130,30 @@ impl fmt::Display for Error {
             BallotOverlap { member } => {
                 write!(f, "member {member} appears in more than one of yes, no and abstain")
             }
+            MemoryLimit { needed, limit } if needed == u64::MAX => write!(
+                f,
+                "the computation needs more than 16 EiB, over the memory limit of {limit} bytes"
+            ),
             MemoryLimit { needed, limit } => write!(
                 f,
-                "the computation needs at least {needed} bytes, over the memory limit of {limit}"
+                "the computation needs at least {needed} bytes, over the memory limit of {limit} bytes"
             ),
-            TooCostly { estimate, budget } => write!(
+            TooCostly { estimate, budget } => {
+                write!(f, "the exact computation needs about ")?;
+                write_steps(f, estimate)?;
+                write!(f, " steps, over the budget of ")?;
+                write_steps(f, budget)?;
+                write!(f, " steps")
+            }
+            OverBudget { budget } => {
+                write!(f, "the computation used up its budget of ")?;
+                write_steps(f, budget)?;
+                write!(f, " steps before it finished")
+            }
+            Cancelled => write!(f, "the computation was cancelled"),
+            OutOfMemory { bytes } => write!(
                 f,
-                "the exact computation needs about {estimate} steps, over the budget of {budget}"
+                "the system refused to allocate {bytes} more bytes (within the memory limit)"
             ),
         }
     }

@@ -6,13 +6,14 @@
 //! * [`quota`]: exact integer quotas from shares and "against" forms;
 //! * [`coalition`] and [`ballot`]: fixed-capacity member sets and four-state ballots;
 //! * [`limits`]: every fixed limit, in one table;
+//! * [`meter`]: the step budget, memory limit, cancellation and progress of a running computation;
 //! * [`count`]: the checked [`Counter`] trait and fixed-width [`Wide`] integers;
 //! * [`error`] and [`engine_id`]: the single error type and the engine
 //!   identifiers it names.
 //!
 //! Import rule: the model imports nothing from the other folders
 //! (`engine`, `analysis`, `device`); they all build on it. Nothing here
-//! allocates; time and space bounds are in each module.
+//! allocates (but [`Meter::vec`] with `alloc`); time and space bounds are in each module.
 
 pub mod atom;
 pub mod ballot;
@@ -21,6 +22,7 @@ pub mod count;
 pub mod engine_id;
 pub mod error;
 pub mod limits;
+pub mod meter;
 pub mod quota;
 pub mod rule;
 
@@ -29,4 +31,5 @@ pub use ballot::{Ballot, Vote};
 pub use coalition::{Coalition, Members};
 pub use count::{Count1024, Counter, Wide};
 pub use error::Error;
+pub use meter::Meter;
 pub use rule::{Node, Rule};

@@ -17,8 +17,10 @@
 //!
 //! Time: O(N (m log N + n)) to build and O(N n^2) to count with sizes
 //! (O(N) without), for N nodes, m atoms and n members. Space: O(N n)
-//! counts for the backward size vectors; checked against the caller's
-//! memory limit before allocating ([`Error::MemoryLimit`]). Counts are in
+//! counts for the backward size vectors. The build and the counting pass
+//! claim every table from the caller's [`Meter`] before allocating
+//! ([`Error::MemoryLimit`]) and charge their steps as they go
+//! ([`Error::OverBudget`], [`Error::Cancelled`]). Counts are in
 //! the caller's [`Counter`] type, checked.
 //!
 //! Files: `build.rs` (equivalence classes, the level tables and the
@@ -51,6 +53,7 @@ use crate::engine::{Need, Scope, DIAGRAM_DESCRIPTION};
 use crate::model::count::Counter;
 use crate::model::engine_id::Engine;
 use crate::model::error::Error;
+use crate::model::meter::Meter;
 use crate::model::rule::Rule;
 use build::{build, proper_and_strong};
 use paths::count_diagram;
@@ -75,16 +78,26 @@ pub struct DiagramStats {
     pub widest_level: usize,
 }
 
-/// Builds the diagram of `rule` in `order` and reports its size.
+/// Builds the diagram of `rule` in `order` and reports its size, within
+/// [`DEFAULT_MEMORY_LIMIT`].
 pub fn stats<W: AsRef<[u64]>>(rule: &Rule<W>, order: Order) -> Result<DiagramStats, Error> {
-    Ok(build(rule, member_order(rule, order), DEFAULT_MAX_NODES)?.stats())
+    stats_metered(rule, order, &Meter::new(u128::MAX, DEFAULT_MEMORY_LIMIT))
 }
 
-/// Default memory limit of the counting pass: 2 GiB.
-pub const DEFAULT_MEMORY_LIMIT: u64 = 2 << 30;
+/// [`stats`] charging `meter` while the diagram is built.
+pub fn stats_metered<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    order: Order,
+    meter: &Meter<'_>,
+) -> Result<DiagramStats, Error> {
+    let d = build(rule, member_order(rule, order), meter)?;
+    d.release(meter);
+    Ok(d.stats())
+}
 
-/// Most nodes the engine builds by default.
-pub const DEFAULT_MAX_NODES: usize = 20_000_000;
+/// Memory limit of [`stats`] and of the engine run without a caller's
+/// meter: 2 GiB (the same as the planner's default).
+pub const DEFAULT_MEMORY_LIMIT: u64 = 2 << 30;
 
 /// The member order for `order`.
 pub(crate) fn member_order<W: AsRef<[u64]>>(rule: &Rule<W>, order: Order) -> Vec<usize> {
@@ -127,8 +140,8 @@ impl Counting for Diagrams {
     const ENGINE: Engine = Engine::Diagram;
     const DESCRIPTION: &'static str = DIAGRAM_DESCRIPTION;
     const MINIMAL_COALITIONS: bool = false;
-    // The estimate bounds the nodes from above; `count_diagram` checks the
-    // real size against the limit before allocating.
+    // The estimate bounds the nodes from above; the build and the counting
+    // pass claim their real tables from the job's meter as they grow.
     const CHECKS_OWN_MEMORY: bool = true;
 
     /// No caller scratch: the engine allocates its own tables.
@@ -148,13 +161,16 @@ impl Counting for Diagrams {
     }
 
     fn run<W: AsRef<[u64]>, C: Counter>(job: Job<'_, W, C>) -> Result<RuleCounts<C>, Error> {
-        count(job.rule, job.members, Order::LightFirst, DEFAULT_MEMORY_LIMIT)
+        count(job.rule, job.members, Order::LightFirst, job.meter)
     }
 }
 
 /// Estimated work for the planner, without building: the diagram has at
-/// most min(2^l, 2^(n-l+1), Π_j (classes of atom j)) nodes on level l, and
-/// an atom has at most (remaining total + 2) classes.
+/// most min(2^l, Π_j (classes of atom j)) nodes on level l (plus the two
+/// decided ones), and with k members left an atom has at most
+/// min(remaining total + 2, 2^k + 1) classes (intervals between the subset
+/// sums of those members). An upper bound: each node is a tuple of
+/// classes, and a level has at most 2^l nodes reachable from the root.
 pub(crate) fn estimate<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
     let n = rule.members() as u128;
     let per = (rule.atoms().len() as u128 + 8) * 16 + n * n;
@@ -178,14 +194,18 @@ fn estimate_nodes<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
         .collect();
     let mut nodes: u128 = 0;
     for l in 0..=n {
-        let by_atoms = rest.iter().fold(1u128, |p, &r| p.saturating_mul(r + 2));
-        let top = if l < 127 { 1u128 << l } else { u128::MAX };
-        let bottom = if n - l < 126 {
-            1u128 << (n - l + 1)
+        let left = n - l;
+        let sums = if left < 127 {
+            (1u128 << left) + 1
         } else {
             u128::MAX
         };
-        nodes = nodes.saturating_add(by_atoms.min(top).min(bottom));
+        let by_atoms = rest
+            .iter()
+            .fold(1u128, |p, &r| p.saturating_mul((r + 2).min(sums)))
+            .saturating_add(2);
+        let top = if l < 127 { 1u128 << l } else { u128::MAX };
+        nodes = nodes.saturating_add(by_atoms.min(top));
         if l < n {
             for (j, a) in rule.atoms().iter().enumerate() {
                 rest[j] -= u128::from(rule.weight(usize::from(a.attribute), order[l]));
@@ -203,13 +223,13 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     order: Order,
-    memory_limit: u64,
+    meter: &Meter<'_>,
 ) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     if C::BITS > 128 && n < 127 {
         let widen = |v: u128| C::from_u128(v).ok_or(Error::CountOverflow);
         let mut wide = vec![C::ZERO; n];
-        let r = count_as::<_, u128>(rule, order, memory_limit, |member, swings, pivots| {
+        let r = count_as::<_, u128>(rule, order, meter, |member, swings, pivots| {
             for (w, &p) in wide.iter_mut().zip(pivots) {
                 *w = widen(p)?;
             }
@@ -234,7 +254,7 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
             engine: Engine::Diagram,
         });
     }
-    count_as::<_, C>(rule, order, memory_limit, |member, swings, pivots| {
+    count_as::<_, C>(rule, order, meter, |member, swings, pivots| {
         let m = members.get_mut(member).ok_or(Error::CountOverflow)?;
         m.swings = swings;
         let (ss, numerator) = shapley_from_sizes(n, pivots)?;
@@ -247,14 +267,16 @@ pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
 fn count_as<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     order: Order,
-    memory_limit: u64,
+    meter: &Meter<'_>,
     on_member: impl FnMut(usize, C, &[C]) -> Result<(), Error>,
 ) -> Result<RuleCounts<C>, Error> {
     let n = rule.members();
     let members_order = member_order(rule, order);
-    let d = build(rule, members_order.clone(), DEFAULT_MAX_NODES)?;
-    let (winning, losing, smallest) = count_diagram(&d, n, true, memory_limit, on_member)?;
-    let (proper, strong) = proper_and_strong(rule, &members_order, DEFAULT_MAX_NODES)?;
+    let d = build(rule, members_order.clone(), meter)?;
+    let counted = count_diagram(&d, n, true, meter, on_member);
+    d.release(meter);
+    let (winning, losing, smallest) = counted?;
+    let (proper, strong) = proper_and_strong(rule, &members_order, meter)?;
     Ok(RuleCounts {
         members: n,
         winning,

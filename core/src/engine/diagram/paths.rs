@@ -3,8 +3,8 @@
 //! by level, and from both every member's swings and Shapley-Shubik pivots.
 //!
 //! Time O(N n^2) with sizes, O(N) without, for N nodes and n members; space
-//! O(N n) counts with sizes, checked against the caller's memory limit
-//! before allocating ([`Error::MemoryLimit`]). Counts use the checked
+//! O(N n) counts with sizes, claimed from the caller's [`Meter`] before
+//! allocating ([`Error::MemoryLimit`]) and charged level by level. Counts use the checked
 //! [`Counter`]: overflow is [`Error::CountOverflow`].
 
 // Hot loops index their tables and add bounded integers directly (checked
@@ -17,14 +17,14 @@
 // `Counter`.
 #![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
 
-use alloc::vec;
-
 use crate::model::count::Counter;
 use crate::model::error::Error;
+use crate::model::meter::Meter;
 
 use super::build::Diagram;
 
-/// Bytes the counting pass needs for a diagram of `nodes` nodes.
+/// Bytes the counting pass needs for a diagram of `nodes` nodes: the
+/// backward table and, at most as large, the forward tables of two levels.
 fn counting_bytes<C>(nodes: usize, n: usize, sizes: bool) -> u64 {
     let per = core::mem::size_of::<C>() as u64;
     let width = if sizes { n as u64 + 1 } else { 1 };
@@ -45,21 +45,33 @@ pub(crate) fn count_diagram<C: Counter>(
     d: &Diagram,
     n: usize,
     sizes: bool,
-    memory_limit: u64,
+    meter: &Meter<'_>,
+    on_member: impl FnMut(usize, C, &[C]) -> Result<(), Error>,
+) -> Result<(C, C, Option<usize>), Error> {
+    let nodes = d.starts[n + 1];
+    // Claimed as a whole first, so that a diagram too large to count fails
+    // before any table is filled.
+    let needed = counting_bytes::<C>(nodes, n, sizes);
+    meter.claim(needed)?;
+    let counted = count_claimed(d, n, sizes, meter, on_member);
+    meter.release(needed);
+    counted
+}
+
+#[inline]
+fn count_claimed<C: Counter>(
+    d: &Diagram,
+    n: usize,
+    sizes: bool,
+    meter: &Meter<'_>,
     mut on_member: impl FnMut(usize, C, &[C]) -> Result<(), Error>,
 ) -> Result<(C, C, Option<usize>), Error> {
     let nodes = d.starts[n + 1];
-    let needed = counting_bytes::<C>(nodes, n, sizes);
-    if needed > memory_limit {
-        return Err(Error::MemoryLimit {
-            needed,
-            limit: memory_limit,
-        });
-    }
     // Backward: number of TRUE completions from each node, by number of yes
     // votes among the remaining members (one slot without sizes).
     let width = if sizes { n + 1 } else { 1 };
-    let mut back = vec![C::ZERO; nodes * width];
+    let unmetered = Meter::unlimited();
+    let mut back = unmetered.vec(nodes * width, C::ZERO)?;
     for (k, &t) in d.last_true.iter().enumerate() {
         if t {
             back[(d.starts[n] + k) * width] = C::ONE;
@@ -67,6 +79,8 @@ pub(crate) fn count_diagram<C: Counter>(
     }
     for l in (0..n).rev() {
         let rest = n - l;
+        let level_nodes = (d.starts[l + 1] - d.starts[l]) as u64;
+        meter.charge(level_nodes * (rest as u64 + 1).min(width as u64))?;
         for v in d.starts[l]..d.starts[l + 1] {
             let (y, z) = (d.yes[v] as usize, d.no[v] as usize);
             if sizes {
@@ -86,13 +100,15 @@ pub(crate) fn count_diagram<C: Counter>(
     let smallest = back[..width].iter().position(|c| !c.is_zero());
     let smallest = if sizes { smallest } else { None };
     // Forward, level by level, accumulating each level's member's pivots.
-    let mut fwd = vec![C::ZERO; width];
+    let mut fwd = unmetered.vec(width, C::ZERO)?;
     fwd[0] = C::ONE;
-    let mut pivots = vec![C::ZERO; n];
+    let mut pivots = unmetered.vec(n, C::ZERO)?;
     for l in 0..n {
         let level_nodes = d.starts[l + 1] - d.starts[l];
         let next_nodes = d.starts[l + 2] - d.starts[l + 1];
-        let mut next = vec![C::ZERO; next_nodes * width];
+        let per_node = if sizes { (l as u64 + 1) * (n - l) as u64 } else { 1 };
+        meter.charge(level_nodes as u64 * per_node)?;
+        let mut next = unmetered.vec(next_nodes * width, C::ZERO)?;
         for c in pivots.iter_mut() {
             *c = C::ZERO;
         }

@@ -26,9 +26,21 @@ fn totals_at_the_top_of_u64() {
     );
     let max = MAX_TOTAL;
     let rule = Rule::weighted(max, vec![max - 3, 1, 1, 1, 0]).unwrap();
-    let d = count_allocating::<_, u128>(&rule, Engine::Diagram, Scope::All).unwrap();
+    let d = count_allocating::<_, u128>(
+        &rule,
+        Engine::Diagram,
+        Scope::All,
+        &crate::model::meter::Meter::unlimited(),
+    )
+    .unwrap();
     assert_eq!(d.0.winning, 2); // all four weighted members, with or without the fifth
-    let e = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+    let e = count_allocating::<_, u128>(
+        &rule,
+        Engine::Enumerate,
+        Scope::All,
+        &crate::model::meter::Meter::unlimited(),
+    )
+    .unwrap();
     assert_eq!(d.0.winning, e.0.winning);
     for (a, b) in d.1.iter().zip(&e.1) {
         assert_eq!(a.swings, b.swings);
@@ -72,9 +84,9 @@ proptest! {
         let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
         let rule = rule_from(n, w, q, shape);
         let order = [Order::Declared, Order::HeavyFirst, Order::LightFirst][order as usize];
-        let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+        let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All, &crate::model::meter::Meter::unlimited()).unwrap();
         let mut members = vec![MemberCounts::<u128>::EMPTY; n];
-        let got = count(&rule, &mut members, order, DEFAULT_MEMORY_LIMIT).unwrap();
+        let got = count(&rule, &mut members, order, &crate::model::meter::Meter::unlimited()).unwrap();
         prop_assert_eq!(got.winning, oracle.winning);
         prop_assert_eq!(got.losing, oracle.losing);
         prop_assert_eq!(got.proper, oracle.proper);
@@ -91,6 +103,11 @@ proptest! {
 fn memory_limit_is_an_error() {
     let rule = Rule::weighted(6, vec![1u64, 2, 3, 4, 5]).unwrap();
     let mut members = vec![MemberCounts::<u128>::EMPTY; 5];
-    let got = count(&rule, &mut members, Order::HeavyFirst, 64);
+    let got = count(
+        &rule,
+        &mut members,
+        Order::HeavyFirst,
+        &crate::model::meter::Meter::new(u128::MAX, 64),
+    );
     assert!(matches!(got, Err(Error::MemoryLimit { limit: 64, .. })));
 }
