@@ -95,10 +95,11 @@ struct ReportArgs {
     /// Counting engine (default: the planner's choice).
     #[arg(long, value_enum, default_value_t = EngineChoice::Auto)]
     engine: EngineChoice,
-    /// Most elementary steps the exact computation may take.
+    /// Most elementary steps the computation may take, exact or approximate
+    /// (charged as it runs; 5e10 steps take about a minute).
     #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
     budget: u128,
-    /// Most memory an engine may use, e.g. 2GiB or 512MiB.
+    /// Most memory an engine may use, e.g. 2GiB or 512MiB (claimed as it allocates).
     #[arg(long, value_name = "BYTES", value_parser = parse_bytes, default_value = "2GiB")]
     memory: u64,
     /// Print the planner's estimates for every engine and why it chose one.

@@ -30,7 +30,7 @@
 //! | step | time |
 //! | --- | --- |
 //! | parse + compile | O(source + members * attributes + bloc entries) |
-//! | lint | one exact analysis per rule, within a work budget |
+//! | lint | one exact analysis per rule, all rules of a file within one work budget |
 //! | print | O(members * attributes + nodes) |
 
 #![deny(unsafe_code)]

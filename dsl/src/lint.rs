@@ -1,13 +1,16 @@
 //! Warnings that need exact counts: members that are dummies under a rule,
 //! and rules that are not proper (two disjoint coalitions both pass).
 //!
-//! Each rule is analysed once by the cheapest engine within `budget` steps;
-//! a rule over the budget gets a note instead of a verdict. For a rule that
+//! Each rule is analysed once by the cheapest engine; all rules of a file
+//! share one step budget (one [`Meter`]), so a file of many rules costs no
+//! more than the budget in all. A rule over what is left gets a note
+//! instead of a verdict. For a rule that
 //! is not proper and has at most [`WITNESS_MEMBERS`] members, the warning
 //! names two disjoint passing coalitions, found by enumeration
 //! (O(2^n * (n + nodes))) and shrunk to minimal ones.
 
-use clout_core::{Coalition, Error, Rule};
+use clout_core::planner::DEFAULT_MEMORY;
+use clout_core::{Coalition, Error, Meter, Rule};
 
 use crate::compile::{CompiledRule, RuleFile};
 use crate::diagnostic::Diagnostic;
@@ -16,25 +19,52 @@ use crate::exact;
 /// Most members for which an improper rule's warning names a witness.
 pub const WITNESS_MEMBERS: usize = 20;
 
-/// Warnings (and notes for rules too costly to check) for every rule.
+/// Warnings (and notes for rules too costly to check) for every rule,
+/// within `budget` steps for the whole file.
 pub fn lint(file: &RuleFile, budget: u128) -> Vec<Diagnostic> {
+    lint_metered(file, &Meter::new(budget, DEFAULT_MEMORY))
+}
+
+/// [`lint`] charging `meter` for every rule in turn: the rules share its
+/// budget, memory limit and cancellation flag.
+pub fn lint_metered(file: &RuleFile, meter: &Meter<'_>) -> Vec<Diagnostic> {
     file.rules
         .iter()
-        .flat_map(|r| lint_rule(file, r, budget))
+        .flat_map(|r| lint_rule(file, r, meter))
         .collect()
 }
 
-fn lint_rule(file: &RuleFile, r: &CompiledRule, budget: u128) -> Vec<Diagnostic> {
-    let power = match exact::choose(&r.rule, budget).and_then(|p| exact::power(&r.rule, p.engine)) {
+/// A step count for a note: "more than 10^38" for a saturated estimate.
+fn steps(n: u128) -> String {
+    if n == u128::MAX {
+        "more than 10^38".to_string()
+    } else {
+        format!("{:.1e}", n as f64)
+    }
+}
+
+fn lint_rule(file: &RuleFile, r: &CompiledRule, meter: &Meter<'_>) -> Vec<Diagnostic> {
+    let left = meter.budget().saturating_sub(u128::from(meter.spent()));
+    let counted = exact::choose(&r.rule, left).and_then(|p| exact::power_metered(&r.rule, p.engine, meter));
+    let power = match counted {
         Ok(p) => p,
         Err(e) => {
             let why = match e {
-                Error::TooCostly { estimate, .. } => {
-                    format!(
-                        "the exact computation needs about {estimate:.1e} steps",
-                        estimate = estimate as f64
-                    )
-                }
+                Error::TooCostly { estimate, budget } if budget < meter.budget() => format!(
+                    "the exact computation needs about {} steps, more than the {} left of the file's budget of {} steps",
+                    steps(estimate),
+                    steps(budget),
+                    steps(meter.budget())
+                ),
+                Error::TooCostly { estimate, budget } => format!(
+                    "the exact computation needs about {} steps, over the budget of {} steps",
+                    steps(estimate),
+                    steps(budget)
+                ),
+                Error::OverBudget { budget } => format!(
+                    "the file's budget of {} steps ran out while it was counted",
+                    steps(budget)
+                ),
                 other => other.to_string(),
             };
             return vec![Diagnostic::note(

@@ -380,6 +380,34 @@ fn lint_warns_about_dummies_and_improper_rules() {
     assert_eq!(n[0].severity, Severity::Note);
 }
 
+#[test]
+fn lint_spends_one_budget_per_file() {
+    // Two identical rules: a budget of exactly one rule's estimate checks the
+    // first and leaves too little for the second (the engines never charge
+    // more than their estimate on a rule they accept).
+    let source = "member a seats=5\nmember b seats=4\nmember c seats=3\nmember d seats=2\nmember e seats=1\n\
+                  rule first = seats >= 1/2\nrule second = seats >= 1/2\n";
+    let f = ok(source);
+    let one = exact::choose(&f.rule(Some("first")).unwrap().rule, u128::MAX)
+        .unwrap()
+        .cost;
+    let both = lint(&f, u128::MAX);
+    assert!(both.iter().all(|d| d.severity != Severity::Note), "{both:?}");
+    let shared = lint(&f, one);
+    let notes: Vec<&str> = shared
+        .iter()
+        .filter(|d| d.severity == Severity::Note)
+        .map(|d| d.message.as_str())
+        .collect();
+    assert_eq!(notes.len(), 1, "{shared:?}");
+    assert!(
+        notes[0].starts_with("rule `second` was not checked"),
+        "{}",
+        notes[0]
+    );
+    assert!(notes[0].contains("left of the file's budget of"), "{}", notes[0]);
+}
+
 fn exact_of(source: &str) -> exact::Power {
     let f = ok(source);
     let r = &f.rule(None).unwrap().rule;

@@ -52,7 +52,18 @@ pub fn approximate(
     meter: &Meter<'_>,
 ) -> Result<Approximation, Failure> {
     let r = &rule.rule;
-    let fail = |e: clout_core::Error| super::core_failure(&rule.name, e);
+    let fail = |e: clout_core::Error| match e {
+        clout_core::Error::OverBudget { budget } => Failure {
+            kind: crate::failure::FailureKind::Limit,
+            ..Failure::input(format!(
+                "rule `{}`: the budget of {} steps is too small for even one sample of the approximation",
+                rule.name,
+                super::steps(budget)
+            ))
+            .with_hint("raise the limit with --budget STEPS (5e10 steps take about a minute)")
+        },
+        other => super::core_failure(&rule.name, other),
+    };
     let half = Meter::new(meter.budget() / 2, meter.memory());
     let s = Sampling {
         seed: options.seed,

@@ -508,7 +508,7 @@ pub fn reason(err: clout_core::Error) -> String {
             steps(budget)
         ),
         clout_core::Error::OverBudget { budget } => format!(
-            "the exact engine used up the budget of {} steps before it finished",
+            "the computation used up the budget of {} steps before it finished",
             steps(budget)
         ),
         clout_core::Error::OutOfMemory { bytes: b } => format!(

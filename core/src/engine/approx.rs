@@ -180,13 +180,15 @@ fn wilson(hits: u64, n: u64, z: f64) -> Estimate {
 }
 
 /// Runs batches until every member's interval meets the tolerance.
-/// `batch(rng, counts)` adds one batch's hits into `counts`.
+/// `batch(rng, counts, samples)` adds the hits of `samples` draws (a whole
+/// batch is [`BATCH`]) into `counts`.
 ///
 /// Each round is charged to `meter` before it runs, `per_sample` steps a
-/// sample; rounds shrink to what the budget still allows. When not one
-/// more batch fits, sampling stops with the intervals reached so far
-/// (`converged` false), or with [`Error::OverBudget`] when not even the
-/// first batch fits. Cancellation stops it with [`Error::Cancelled`].
+/// sample; rounds shrink to what the budget still allows, down to a part of
+/// one batch (its first draws, so the figures stay the same for the same
+/// budget). When not one more draw fits, sampling stops with the intervals
+/// reached so far (`converged` false), or with [`Error::OverBudget`] when
+/// not even one draw fits. Cancellation stops it with [`Error::Cancelled`].
 fn sample_rounds<F>(
     n: usize,
     s: &Sampling,
@@ -195,41 +197,56 @@ fn sample_rounds<F>(
     batch: F,
 ) -> Result<SampledPower, Error>
 where
-    F: Fn(&mut Rng, &mut [u64]) + Sync,
+    F: Fn(&mut Rng, &mut [u64], u64) + Sync,
 {
     let z = z_value(s.confidence);
     let mut hits = vec![0u64; n];
     let mut drawn = 0u64;
     let mut next_batch = 0u64;
-    let per_batch = per_sample.saturating_mul(BATCH).max(1);
+    let per_sample = per_sample.max(1);
     meter.expect(u128::from(per_sample) * u128::from(s.max_samples));
+    let estimates = |hits: &[u64], drawn: u64| -> (Vec<Estimate>, bool) {
+        let members: Vec<Estimate> = hits.iter().map(|&h| wilson(h, drawn, z)).collect();
+        let converged = members.iter().all(|e| e.half_width <= s.tolerance);
+        (members, converged)
+    };
     loop {
         let left = meter.budget().saturating_sub(u128::from(meter.spent()));
-        let affordable = u64::try_from(left / u128::from(per_batch)).unwrap_or(u64::MAX);
-        let round = ROUND
-            .min(s.max_samples.saturating_sub(drawn).div_ceil(BATCH))
-            .min(affordable)
-            .max(1);
-        if let Err(e) = meter.charge(round.saturating_mul(per_batch)) {
-            if e == (Error::OverBudget {
-                budget: meter.budget(),
-            }) && drawn > 0
-            {
-                let members: Vec<Estimate> = hits.iter().map(|&h| wilson(h, drawn, z)).collect();
-                let converged = members.iter().all(|e| e.half_width <= s.tolerance);
-                return Ok(SampledPower {
-                    members,
-                    samples: drawn,
-                    converged,
+        let affordable = u64::try_from(left / u128::from(per_sample)).unwrap_or(u64::MAX);
+        let wanted = s.max_samples.saturating_sub(drawn).max(1);
+        if affordable == 0 {
+            meter.check()?;
+            if drawn == 0 {
+                return Err(Error::OverBudget {
+                    budget: meter.budget(),
                 });
             }
-            return Err(e);
+            let (members, converged) = estimates(&hits, drawn);
+            return Ok(SampledPower {
+                members,
+                samples: drawn,
+                converged,
+            });
         }
+        if affordable < BATCH {
+            // The last draws the budget allows: the first ones of the next batch.
+            let draws = affordable.min(wanted);
+            meter.charge(draws * per_sample)?;
+            batch(&mut Rng::new(s.seed, next_batch), &mut hits, draws);
+            drawn += draws;
+            let (members, converged) = estimates(&hits, drawn);
+            return Ok(SampledPower {
+                members,
+                samples: drawn,
+                converged,
+            });
+        }
+        let round = ROUND.min(wanted.div_ceil(BATCH)).min(affordable / BATCH).max(1);
+        meter.charge(round.saturating_mul(BATCH).saturating_mul(per_sample))?;
         run_round(n, s, next_batch, round, &batch, &mut hits);
         next_batch += round;
         drawn += round * BATCH;
-        let members: Vec<Estimate> = hits.iter().map(|&h| wilson(h, drawn, z)).collect();
-        let converged = members.iter().all(|e| e.half_width <= s.tolerance);
+        let (members, converged) = estimates(&hits, drawn);
         if converged || drawn >= s.max_samples {
             return Ok(SampledPower {
                 members,
@@ -243,7 +260,7 @@ where
 #[cfg(feature = "std")]
 fn run_round<F>(n: usize, s: &Sampling, first: u64, count: u64, batch: &F, hits: &mut [u64])
 where
-    F: Fn(&mut Rng, &mut [u64]) + Sync,
+    F: Fn(&mut Rng, &mut [u64], u64) + Sync,
 {
     let cores = crate::engine::threads::available();
     let threads = if s.threads == 0 { cores } else { s.threads }.clamp(1, count as usize);
@@ -261,7 +278,7 @@ where
                     let mut k = t as u64;
                     while k < count {
                         let mut rng = Rng::new(s.seed, first + k);
-                        batch(&mut rng, &mut local);
+                        batch(&mut rng, &mut local, BATCH);
                         k += threads as u64;
                     }
                     local
@@ -283,7 +300,7 @@ where
 #[cfg(not(feature = "std"))]
 fn run_round<F>(_: usize, s: &Sampling, first: u64, count: u64, batch: &F, hits: &mut [u64])
 where
-    F: Fn(&mut Rng, &mut [u64]) + Sync,
+    F: Fn(&mut Rng, &mut [u64], u64) + Sync,
 {
     run_in_turn(s, first, count, batch, hits)
 }
@@ -291,11 +308,11 @@ where
 /// The batches one after the other on this thread.
 fn run_in_turn<F>(s: &Sampling, first: u64, count: u64, batch: &F, hits: &mut [u64])
 where
-    F: Fn(&mut Rng, &mut [u64]),
+    F: Fn(&mut Rng, &mut [u64], u64),
 {
     for k in 0..count {
         let mut rng = Rng::new(s.seed, first + k);
-        batch(&mut rng, hits);
+        batch(&mut rng, hits, BATCH);
     }
 }
 
@@ -321,9 +338,9 @@ pub fn sample_penrose_metered<W: AsRef<[u64]> + Sync>(
     }
     let per_sample =
         (n as u64).saturating_mul(attributes as u64 + 2 + (rule.atoms().len() + rule.formula().len()) as u64);
-    sample_rounds(n, s, per_sample, meter, |rng, hits| {
+    sample_rounds(n, s, per_sample, meter, |rng, hits, draws| {
         let mut yes = vec![0u64; words];
-        for _ in 0..BATCH {
+        for _ in 0..draws {
             for w in yes.iter_mut() {
                 *w = rng.next();
             }
@@ -385,9 +402,9 @@ fn sample_penrose_threshold<W: AsRef<[u64]> + Sync>(
     }
     let words = n.div_ceil(64);
     let per_sample = n as u64 + 8;
-    let mut est = sample_rounds(n, s, per_sample, meter, |rng, hits| {
+    let mut est = sample_rounds(n, s, per_sample, meter, |rng, hits, draws| {
         let mut yes = vec![0u64; words];
-        for _ in 0..BATCH {
+        for _ in 0..draws {
             let mut total = 0u64;
             for (wi, w) in yes.iter_mut().enumerate() {
                 *w = rng.next();
@@ -468,9 +485,9 @@ pub fn sample_shapley_metered<W: AsRef<[u64]> + Sync>(
     // An ordering adds members until the rule passes: at most n of them.
     let per_sample =
         (n as u64).saturating_mul(attributes as u64 + 2 + (rule.atoms().len() + rule.formula().len()) as u64);
-    sample_rounds(n, s, per_sample, meter, |rng, hits| {
+    sample_rounds(n, s, per_sample, meter, |rng, hits, draws| {
         let mut perm: Vec<usize> = (0..n).collect();
-        for _ in 0..BATCH {
+        for _ in 0..draws {
             let mut sums = [0u64; MAX_ATTRIBUTES];
             for k in 0..n {
                 let j = k + rng.below(n - k);

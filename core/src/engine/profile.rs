@@ -201,10 +201,11 @@ fn count<W: AsRef<[u64]>, C: Counter>(
     let per = (2 * t_count as u64 + 2) * (rule.atoms().len() + rule.formula().len()) as u64;
     let mut visited: u64 = 0;
     loop {
+        // After each full chunk, so a small run is never charged more than it costs.
+        visited += 1;
         if visited % CHUNK == 0 {
             meter.charge(per * CHUNK)?;
         }
-        visited += 1;
         let mult = products[t_count];
         let win = passes(&sums);
         let mut complement = [0u64; MAX_ATTRIBUTES];

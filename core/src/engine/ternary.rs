@@ -137,10 +137,11 @@ fn for_each_profile<W: AsRef<[u64]>>(
     meter.expect(u128::from(per).saturating_mul(profiles_of(types)));
     let mut visited: u64 = 0;
     loop {
+        // After each full chunk, so a small run is never charged more than it costs.
+        visited += 1;
         if visited % CHUNK == 0 {
             meter.charge(per * CHUNK)?;
         }
-        visited += 1;
         sums(&digits, &mut yes, &mut no, &mut abstain);
         visit(
             &digits,

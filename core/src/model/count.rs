@@ -331,18 +331,42 @@ impl<const L: usize> Counter for Wide<L> {
 
 impl<const L: usize> fmt::Display for Wide<L> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        // 10^19 is the largest power of ten in a u64. Recursion depth is the
-        // number of 19-digit chunks (at most 20 * L / 19 + 1), each frame one
-        // `Wide`, so no buffer sized for the worst case is needed.
+        // 10^19 is the largest power of ten in a u64. The 19-digit chunks are
+        // found least significant first and kept in two arrays of L words
+        // (64 bits hold 19.3 digits, so L limbs give at most 1.02 L + 2
+        // chunks, below 2 L for every L): a loop, not a recursion whose
+        // depth grows with the number (a 65,535-member count has 1,039
+        // chunks, and a frame per chunk holding a `Wide` overflowed the
+        // stack of a worker thread).
         const CHUNK: u64 = 10_000_000_000_000_000_000;
         fn write_chunks<const L: usize>(v: Wide<L>, out: &mut dyn fmt::Write) -> fmt::Result {
-            let (q, r) = v.div_rem_u64(CHUNK);
-            if q.used() == 0 {
-                write!(out, "{r}")
-            } else {
-                write_chunks(q, out)?;
-                write!(out, "{r:019}")
+            let mut low = [0u64; L];
+            let mut high = [0u64; L];
+            let mut count = 0usize;
+            let mut rest = v;
+            loop {
+                let (q, r) = rest.div_rem_u64(CHUNK);
+                let slot = match count.checked_sub(L) {
+                    None => low.get_mut(count),
+                    Some(k) => high.get_mut(k),
+                };
+                *slot.ok_or(fmt::Error)? = r;
+                count = count.checked_add(1).ok_or(fmt::Error)?;
+                if q.used() == 0 {
+                    break;
+                }
+                rest = q;
             }
+            let chunk = |k: usize| match k.checked_sub(L) {
+                None => low.get(k).copied().unwrap_or(0),
+                Some(j) => high.get(j).copied().unwrap_or(0),
+            };
+            let top = count.saturating_sub(1);
+            write!(out, "{}", chunk(top))?;
+            for k in (0..top).rev() {
+                write!(out, "{:019}", chunk(k))?;
+            }
+            Ok(())
         }
         if f.width().is_none() {
             return write_chunks(*self, f);
@@ -414,6 +438,29 @@ mod tests {
     use std::string::ToString;
 
     type W2 = Wide<2>;
+
+    #[test]
+    fn the_widest_counts_print_on_a_small_stack() {
+        // 10^19000 in 1025 limbs: 1,001 chunks of 19 digits, printed on a
+        // 256 KiB thread (the recursive printer needed about 8 MiB).
+        let text = std::thread::Builder::new()
+            .stack_size(256 << 10)
+            .spawn(|| {
+                let mut v = Wide::<1025>::ONE;
+                for _ in 0..19_000 {
+                    v = v.mul_u64(10).unwrap();
+                }
+                (v.to_string(), std::format!("{:>5}", Wide::<1025>::from_u64(42)))
+            })
+            .unwrap()
+            .join()
+            .unwrap();
+        assert_eq!(text.0.len(), 19_001);
+        assert!(text.0.starts_with("10000") && text.0.bytes().skip(1).all(|b| b == b'0'));
+        assert_eq!(text.1, "   42");
+        assert_eq!(W2::ZERO.to_string(), "0");
+        assert_eq!(w(u128::MAX).to_string(), u128::MAX.to_string());
+    }
 
     fn w(v: u128) -> W2 {
         W2::from_limbs([v as u64, (v >> 64) as u64])
