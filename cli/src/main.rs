@@ -95,8 +95,8 @@ struct ReportArgs {
     /// Counting engine (default: the planner's choice).
     #[arg(long, value_enum, default_value_t = EngineChoice::Auto)]
     engine: EngineChoice,
-    /// Most elementary steps the computation may take, exact or approximate
-    /// (charged as it runs; 5e10 steps take about a minute).
+    /// Most elementary steps the computation may take, charged as it runs (5e10 take
+    /// about a minute); an approximation gets at least 5e9.
     #[arg(long, value_name = "STEPS", value_parser = parse_steps, default_value = "5e10")]
     budget: u128,
     /// Most memory an engine may use, e.g. 2GiB or 512MiB (claimed as it allocates).

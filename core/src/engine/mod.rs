@@ -154,8 +154,13 @@ pub fn try_count_for<W: AsRef<[u64]>, C: Counter>(
     members: &mut [MemberCounts<C>],
     work: Workspace<'_, C>,
 ) -> Result<RuleCounts<C>, Error> {
-    try_count_metered(rule, engine, scope, members, work, &Meter::unlimited())
+    let meter = Meter::new(u128::MAX, UNMETERED_MEMORY);
+    try_count_metered(rule, engine, scope, members, work, &meter)
 }
+
+/// Memory limit of the engines' own tables (the diagram's) when the caller
+/// gives no meter: 2 GiB, the planner's default.
+const UNMETERED_MEMORY: u64 = 2 << 30;
 
 /// [`try_count_for`] charging `meter` as the engine runs: it stops with
 /// [`Error::OverBudget`], [`Error::MemoryLimit`], [`Error::OutOfMemory`]

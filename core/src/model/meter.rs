@@ -121,6 +121,20 @@ impl<'a> Meter<'a> {
         }
     }
 
+    /// A fresh meter with `budget` steps and this one's memory limit and
+    /// cancellation flag (for a second computation under other terms).
+    pub fn with_budget(&self, budget: u128) -> Meter<'a> {
+        Meter {
+            budget,
+            memory: self.memory,
+            steps: tally(0),
+            expected: tally(0),
+            held: tally(0),
+            peak: tally(0),
+            cancel: self.cancel,
+        }
+    }
+
     /// The step budget.
     pub fn budget(&self) -> u128 {
         self.budget

@@ -140,8 +140,8 @@ impl Counting for Diagrams {
     const ENGINE: Engine = Engine::Diagram;
     const DESCRIPTION: &'static str = DIAGRAM_DESCRIPTION;
     const MINIMAL_COALITIONS: bool = false;
-    // The estimate bounds the nodes from above; the build and the counting
-    // pass claim their real tables from the job's meter as they grow.
+    // The estimate is a guess; the build and the counting pass claim their
+    // real tables from the job's meter as they grow.
     const CHECKS_OWN_MEMORY: bool = true;
 
     /// No caller scratch: the engine allocates its own tables.
@@ -165,25 +165,27 @@ impl Counting for Diagrams {
     }
 }
 
-/// Estimated work for the planner, without building: the diagram has at
-/// most min(2^l, Π_j (classes of atom j)) nodes on level l (plus the two
-/// decided ones), and with k members left an atom has at most
-/// min(remaining total + 2, 2^k + 1) classes (intervals between the subset
-/// sums of those members). An upper bound: each node is a tuple of
-/// classes, and a level has at most 2^l nodes reachable from the root.
+/// Estimated work for the planner, without building: a guess, not a bound.
+/// It takes at most min(2^l, 2^(n-l+1), Π_j (classes of atom j)) nodes on
+/// level l, with (remaining total + 2) classes per atom; the middle term
+/// holds for one condition but not for compound rules, whose diagrams can be
+/// far larger. The engine does not rely on it: the build and the counting
+/// pass claim their real tables from the caller's meter and charge their
+/// steps as they go, so a rule that outgrows the guess stops at the memory
+/// limit or the budget ([`Error::MemoryLimit`], [`Error::OverBudget`]).
 pub(crate) fn estimate<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
     let n = rule.members() as u128;
     let per = (rule.atoms().len() as u128 + 8) * 16 + n * n;
     estimate_nodes(rule).saturating_mul(per)
 }
 
-/// Upper estimate of the bytes the engine needs with counts of `count_bytes` each.
+/// Estimated bytes (a guess, as [`estimate`]) with counts of `count_bytes` each.
 pub(crate) fn estimate_memory<W: AsRef<[u64]>>(rule: &Rule<W>, count_bytes: usize) -> u64 {
     let per = (rule.members() as u128 + 1) * count_bytes as u128 * 2 + 16 + 8 * rule.atoms().len() as u128;
     u64::try_from(estimate_nodes(rule).saturating_mul(per)).unwrap_or(u64::MAX)
 }
 
-/// Upper estimate of the number of nodes.
+/// Guessed number of nodes (see [`estimate`]).
 fn estimate_nodes<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
     let n = rule.members();
     let order = member_order(rule, Order::LightFirst);
@@ -194,18 +196,14 @@ fn estimate_nodes<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
         .collect();
     let mut nodes: u128 = 0;
     for l in 0..=n {
-        let left = n - l;
-        let sums = if left < 127 {
-            (1u128 << left) + 1
+        let by_atoms = rest.iter().fold(1u128, |p, &r| p.saturating_mul(r + 2));
+        let top = if l < 127 { 1u128 << l } else { u128::MAX };
+        let bottom = if n - l < 126 {
+            1u128 << (n - l + 1)
         } else {
             u128::MAX
         };
-        let by_atoms = rest
-            .iter()
-            .fold(1u128, |p, &r| p.saturating_mul((r + 2).min(sums)))
-            .saturating_add(2);
-        let top = if l < 127 { 1u128 << l } else { u128::MAX };
-        nodes = nodes.saturating_add(by_atoms.min(top));
+        nodes = nodes.saturating_add(by_atoms.min(top).min(bottom));
         if l < n {
             for (j, a) in rule.atoms().iter().enumerate() {
                 rest[j] -= u128::from(rule.weight(usize::from(a.attribute), order[l]));
