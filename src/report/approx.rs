@@ -41,16 +41,23 @@ pub struct Approximation {
     pub shapley_method: String,
 }
 
+/// The least budget an approximation gets: 5e9 steps, a few seconds. A
+/// `--budget` small enough to rule out exact counting still gets figures;
+/// larger budgets bound the approximation as they bound exact counting.
+pub const APPROXIMATION_MIN_BUDGET: u128 = 5_000_000_000;
+
 /// Estimates every member's Penrose measure, Banzhaf and Shapley-Shubik
-/// index, charging `meter`: the Penrose part may spend half the budget, the
-/// Shapley-Shubik part the rest. Sampling that runs out of budget stops with
-/// the wider intervals reached, and says so; a budget too small for one
-/// batch of samples is an error.
+/// index, charging a meter of `meter`'s budget (at least
+/// [`APPROXIMATION_MIN_BUDGET`]), memory limit and cancellation flag: the
+/// Penrose part may spend half of it, the Shapley-Shubik part the rest.
+/// Sampling that runs out of budget stops with the wider intervals reached,
+/// and says so; a budget too small for one sample is an error.
 pub fn approximate(
     rule: &CompiledRule,
     options: &Options,
     meter: &Meter<'_>,
 ) -> Result<Approximation, Failure> {
+    let meter = &meter.with_budget(meter.budget().max(APPROXIMATION_MIN_BUDGET));
     let r = &rule.rule;
     let fail = |e: clout_core::Error| match e {
         clout_core::Error::OverBudget { budget } => Failure {
@@ -64,7 +71,7 @@ pub fn approximate(
         },
         other => super::core_failure(&rule.name, other),
     };
-    let half = Meter::new(meter.budget() / 2, meter.memory());
+    let half = meter.with_budget(meter.budget() / 2);
     let s = Sampling {
         seed: options.seed,
         tolerance: options.tolerance,
