@@ -18,25 +18,41 @@
  *   ballot N: rejected: REASON
  * Exit status: 0, or 1 when some ballot was rejected, or 2 when the image
  * cannot be loaded. Built and run by bindings-c/tests/abi.rs.
+ *
+ * Firmware builds (bindings-c/firmware/) compile the image in instead of
+ * reading a file: define TALLY_IMAGE_HEADER as a header written by
+ * `clout compile --c-header` (the array `rule_image`, RULE_IMAGE_LEN and
+ * RULE_WORDS), and MAX_YES / MAX_LINE to shrink the buffers.
  */
+#ifndef TALLY_IMAGE_HEADER
 #define _POSIX_C_SOURCE 200809L
-
 #include <fcntl.h>
+#include <unistd.h>
+#endif
+
 #include <stdint.h>
 #include <stdio.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "clout.h"
 
+#define MAX_CONDITIONS 64
+#ifndef MAX_YES
+#define MAX_YES 4096
+#endif
+#ifndef MAX_LINE
+#define MAX_LINE 16384
+#endif
+
+#ifdef TALLY_IMAGE_HEADER
+#include TALLY_IMAGE_HEADER
+static uint64_t rule_memory[RULE_WORDS]; /* exactly what this image needs */
+#else
 #define MAX_IMAGE_BYTES 65536
 #define MAX_WEIGHTS (64 * 64) /* members x attributes of the largest rule held */
-#define MAX_CONDITIONS 64
-#define MAX_YES 4096
-#define MAX_LINE 16384
-
 static uint8_t image[MAX_IMAGE_BYTES];
 static uint64_t rule_memory[CLOUT_RULE_HEADER_WORDS + MAX_WEIGHTS];
+#endif
 static uint32_t yes[MAX_YES];
 static uint64_t sums[MAX_CONDITIONS];
 static uint8_t votes[MAX_YES];
@@ -45,6 +61,20 @@ static char line[MAX_LINE];
 static char message[CLOUT_MESSAGE_MAX];
 static char stdin_buffer[4096], stdout_buffer[4096];
 
+/* The decimal digits of `value` (static storage, overwritten by the next
+ * call). Small C libraries for firmware often print no 64-bit integers
+ * with printf, so the program writes them itself. */
+static const char *u64_text(uint64_t value) {
+    static char text[21];
+    char *p = text + sizeof text - 1;
+    *p = '\0';
+    do {
+        *--p = (char)('0' + value % 10);
+        value /= 10;
+    } while (value != 0);
+    return p;
+}
+
 /* The message of a result code (static storage). */
 static const char *describe(clout_result code) {
     size_t written;
@@ -52,6 +82,7 @@ static const char *describe(clout_result code) {
     return message;
 }
 
+#ifndef TALLY_IMAGE_HEADER
 /* Reads the whole file into image[]; returns its length, or -1. */
 static long read_image(const char *path) {
     size_t len = 0;
@@ -77,6 +108,7 @@ static long read_image(const char *path) {
     close(fd);
     return (long)len;
 }
+#endif
 
 /* Parses member indices from line[] into yes[]; returns their number, or
  * -1 for text that is not an index list. */
@@ -141,9 +173,11 @@ static int decide_votes(const clout_rule *rule, uint32_t members, unsigned long 
         return 1;
     }
     printf("ballot %lu: %s; yes/no/abstain", ballot, outcome.passed ? "passes" : "fails");
-    for (k = 0; k < outcome.conditions; k++)
-        printf(" %llu/%llu/%llu", (unsigned long long)group_sums[k].yes, (unsigned long long)group_sums[k].no,
-               (unsigned long long)group_sums[k].abstain);
+    for (k = 0; k < outcome.conditions; k++) {
+        printf(" %s", u64_text(group_sums[k].yes));
+        printf("/%s", u64_text(group_sums[k].no));
+        printf("/%s", u64_text(group_sums[k].abstain));
+    }
     printf("; met");
     for (k = 0; k < outcome.conditions; k++) printf(" %u", (unsigned)((outcome.met >> k) & 1));
     printf("\n");
@@ -162,6 +196,14 @@ int main(int argc, char **argv) {
 
     setvbuf(stdin, stdin_buffer, _IOFBF, sizeof stdin_buffer);
     setvbuf(stdout, stdout_buffer, _IOLBF, sizeof stdout_buffer);
+#ifdef TALLY_IMAGE_HEADER
+    const uint8_t *image = rule_image;
+    const char *source = "the built-in image";
+    image_len = (long)RULE_IMAGE_LEN;
+    (void)argc;
+    (void)argv;
+#else
+    const char *source = argc == 2 ? argv[1] : "";
     if (argc != 2) {
         fprintf(stderr, "usage: %s RULE.img < ballots\n", argv[0]);
         return 2;
@@ -171,11 +213,12 @@ int main(int argc, char **argv) {
         fprintf(stderr, "tally: cannot read %s (missing, or larger than %d bytes)\n", argv[1], MAX_IMAGE_BYTES);
         return 2;
     }
+#endif
     code = clout_rule_load(image, (size_t)image_len, rule_memory, sizeof rule_memory / sizeof rule_memory[0],
                            &rule);
     if (code == CLOUT_RESULT_OK) code = clout_rule_info(rule, &info);
     if (code != CLOUT_RESULT_OK) {
-        fprintf(stderr, "tally: cannot load %s: %s\n", argv[1], describe(code));
+        fprintf(stderr, "tally: cannot load %s: %s\n", source, describe(code));
         return 2;
     }
     printf("rule: %u members, %u weight attributes, %u conditions\n", (unsigned)info.members,
@@ -208,7 +251,7 @@ int main(int argc, char **argv) {
             continue;
         }
         printf("ballot %lu: %s; sums", ballot, outcome.passed ? "passes" : "fails");
-        for (k = 0; k < outcome.conditions; k++) printf(" %llu", (unsigned long long)sums[k]);
+        for (k = 0; k < outcome.conditions; k++) printf(" %s", u64_text(sums[k]));
         printf("; met");
         for (k = 0; k < outcome.conditions; k++) printf(" %u", (unsigned)((outcome.met >> k) & 1));
         printf("\n");

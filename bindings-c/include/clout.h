@@ -52,6 +52,12 @@
 #define CLOUT_DESCRIPTION_MAX 512
 
 /**
+ * Bytes of a roster digest (SHA-256 of the ordered member names and
+ * weights; docs/image-format.md).
+ */
+#define CLOUT_ROSTER_DIGEST_LEN 32
+
+/**
  * Longest message of any result code, with its terminating NUL.
  */
 #define CLOUT_MESSAGE_MAX 128
@@ -106,6 +112,11 @@ enum clout_result
    */
   CLOUT_RESULT_INTERNAL = 9,
   /**
+   * This build of the library leaves the function out (a firmware build
+   * without the heap: `clout_rule_new`, `clout_power`).
+   */
+  CLOUT_RESULT_NOT_IN_BUILD = 10,
+  /**
    * Not a rule image: the magic bytes are wrong.
    */
   CLOUT_RESULT_IMAGE_MAGIC = 100,
@@ -141,6 +152,18 @@ enum clout_result
    * A condition has an unknown kind.
    */
   CLOUT_RESULT_IMAGE_CONDITION_KIND = 108,
+  /**
+   * The image's member names are malformed.
+   */
+  CLOUT_RESULT_IMAGE_NAMES = 109,
+  /**
+   * The image's roster digest does not match its names and weights.
+   */
+  CLOUT_RESULT_IMAGE_ROSTER = 110,
+  /**
+   * The image has no roster digest (format version 1).
+   */
+  CLOUT_RESULT_IMAGE_NO_ROSTER = 111,
   /**
    * The rule has no members.
    */
@@ -355,6 +378,7 @@ clout_result clout_critical(const clout_rule *rule,
  * into three caller arrays of `len >= members` entries each (entries from
  * `members` on are left alone). Rules of more than
  * `CLOUT_POWER_MAX_MEMBERS` members give `CLOUT_RESULT_POWER_CAPACITY`.
+ * A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
  */
 clout_result clout_power(const clout_rule *rule,
                          uint64_t *swings,
@@ -404,6 +428,7 @@ clout_result clout_rule_load(const uint8_t *image,
 /**
  * Loads an image into memory the library allocates; release it with
  * `clout_rule_free`. The image bytes are no longer needed after the call.
+ * A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
  */
 clout_result clout_rule_new(const uint8_t *image, size_t image_len, clout_rule **rule);
 
@@ -412,6 +437,24 @@ clout_result clout_rule_new(const uint8_t *image, size_t image_len, clout_rule *
  * from `clout_rule_load` is refused with `CLOUT_RESULT_NOT_HEAP_RULE`.
  */
 clout_result clout_rule_free(clout_rule *rule);
+
+/**
+ * Writes the roster digest of an image (`CLOUT_ROSTER_DIGEST_LEN` bytes)
+ * into `digest` (`digest_len` at least that), after checking the image
+ * completely. A device that knows the digest of the roster it serves
+ * compares the two and refuses an image compiled for another roster.
+ * A version-1 image has none: `CLOUT_RESULT_IMAGE_NO_ROSTER`.
+ */
+clout_result clout_image_roster_digest(const uint8_t *image,
+                                       size_t image_len,
+                                       uint8_t *digest,
+                                       size_t digest_len);
+
+/**
+ * Writes the roster digest of the image a rule was loaded from, as
+ * `clout_image_roster_digest` does.
+ */
+clout_result clout_rule_roster_digest(const clout_rule *rule, uint8_t *digest, size_t digest_len);
 
 /**
  * Writes the sizes of a loaded rule into `*sizes`.

@@ -7,15 +7,17 @@
 //! its own out-of-line path, built in place, so a one-word decision never
 //! reserves stack for a wide ballot. Nothing allocates.
 //!
-//! The outcome is the core's own evaluation: for two states the yes-sums of
-//! `Rule::yes_sums` and the formula of `Rule::passes_with_sums`, which is
-//! what `Rule::passes` and `decide` compute (a test compares them); for four
-//! states the core's `decide_ballot`.
+//! The outcome is the core's own evaluation, in its small-stack forms
+//! `decide_each` and `decide_ballot_each` (no per-attribute arrays, no
+//! `Decision`; the core's tests compare them with `decide` and
+//! `decide_ballot`, and a test here compares the C ABI with `decide`).
 
 use core::mem::MaybeUninit;
 
-use clout_core::limits::MAX_ATTRIBUTES;
-use clout_core::{critical as critical_of, decide_ballot, Ballot as FourState, Coalition, Vote};
+use clout_core::limits::MAX_MEMBERS;
+use clout_core::{
+    critical as critical_of, decide_ballot_each, decide_each, Ballot as FourState, Coalition, Vote,
+};
 
 use crate::ffi::{self, clout_rule, LoadedRule};
 use crate::status::clout_result;
@@ -55,6 +57,13 @@ pub struct clout_group_sums {
 
 /// Words in the ballot of a rule too large for one word (65,536 members).
 const WIDE: usize = 1024;
+
+/// Whether a rule of `members` members is decided with a one-word ballot:
+/// always in a build without the heap, which holds at most 64 members (the
+/// wide paths then compile to nothing).
+fn one_word(members: usize) -> bool {
+    members <= 64 || MAX_MEMBERS <= 64
+}
 
 /// A ballot as C gave it.
 #[derive(Clone, Copy)]
@@ -130,7 +139,7 @@ fn decide(rule: &LoadedRule, ballot: Ballot<'_>, out: Report<'_>) -> Result<(), 
     if out.sums.len() < rule.atoms().len() {
         return Err(clout_result::BufferTooSmall);
     }
-    if rule.members() <= 64 {
+    if one_word(rule.members()) {
         decide_with::<1>(rule, ballot, out)
     } else {
         decide_with::<WIDE>(rule, ballot, out)
@@ -145,15 +154,14 @@ fn decide_with<const B: usize>(
 ) -> Result<(), clout_result> {
     let mut yes = Coalition::<B>::EMPTY;
     ballot.fill(rule, &mut yes)?;
-    let mut sums = [0u64; MAX_ATTRIBUTES];
-    rule.yes_sums(&yes, &mut sums)?;
-    let passed = rule.passes_with_sums(&sums[..rule.attributes()]);
     let mut met = 0u64;
-    for (k, (slot, atom)) in out.sums.iter_mut().zip(rule.atoms()).enumerate() {
-        let sum = sums.get(usize::from(atom.attribute)).copied().unwrap_or(0);
-        slot.write(sum);
-        met |= u64::from(sum >= atom.quota) << k;
-    }
+    let sums = out.sums;
+    let passed = decide_each(rule, &yes, |k, tally| {
+        if let Some(slot) = sums.get_mut(k) {
+            slot.write(tally.sum);
+        }
+        met |= u64::from(tally.met) << k;
+    })?;
     out.outcome.write(clout_outcome {
         passed,
         conditions: ffi::count_u32(rule.atoms().len()),
@@ -240,7 +248,7 @@ pub extern "C" fn clout_decide_votes(
         if votes.len() > rule.members() {
             return Err(clout_result::BallotMember);
         }
-        if rule.members() <= 64 {
+        if one_word(rule.members()) {
             decide_votes_with::<1>(rule, votes, sums, outcome)
         } else {
             decide_votes_with::<WIDE>(rule, votes, sums, outcome)
@@ -266,19 +274,20 @@ fn decide_votes_with<const B: usize>(
         };
         ballot.set(i, vote)?;
     }
-    let decision = decide_ballot(rule, &ballot)?;
     let mut met = 0u64;
-    for (k, (slot, t)) in sums.iter_mut().zip(decision.tallies.iter()).enumerate() {
-        slot.write(clout_group_sums {
-            yes: t.sum,
-            no: t.no,
-            abstain: t.abstain,
-        });
+    let passed = decide_ballot_each(rule, &ballot, |k, t| {
+        if let Some(slot) = sums.get_mut(k) {
+            slot.write(clout_group_sums {
+                yes: t.sum,
+                no: t.no,
+                abstain: t.abstain,
+            });
+        }
         met |= u64::from(t.met) << k;
-    }
+    })?;
     outcome.write(clout_outcome {
-        passed: decision.passed,
-        conditions: ffi::count_u32(decision.tallies.len()),
+        passed,
+        conditions: ffi::count_u32(rule.atoms().len()),
         met,
     });
     Ok(())
@@ -304,7 +313,7 @@ pub extern "C" fn clout_critical(
         let words = ffi::input(yes, yes_words)?;
         let out = ffi::output(critical, critical_len)?;
         let count = ffi::out_param(count)?;
-        if rule.members() <= 64 {
+        if one_word(rule.members()) {
             critical_with::<1>(rule, words, out, count)
         } else {
             critical_with::<WIDE>(rule, words, out, count)

@@ -21,7 +21,10 @@
 use core::mem::{align_of, size_of, MaybeUninit};
 use core::ptr;
 use core::slice;
-use std::alloc::{alloc, dealloc, Layout};
+
+#[cfg(feature = "alloc")]
+use alloc::alloc::{alloc, dealloc, Layout};
+#[cfg(feature = "std")]
 use std::panic::{catch_unwind, AssertUnwindSafe};
 
 use clout_core::{image, Rule};
@@ -48,6 +51,8 @@ struct Slot {
     tag: u64,
     /// Words the library allocated for this rule; 0 for caller memory.
     heap_words: usize,
+    /// The image's roster digest (`None` for a version-1 image).
+    roster: Option<[u8; image::DIGEST_LEN]>,
     rule: Rule<SlotWeights>,
 }
 
@@ -75,12 +80,37 @@ pub(crate) type LoadedRule = Rule<SlotWeights>;
 
 /// Runs an export's body and turns a panic into `CLOUT_RESULT_PANIC`, so no
 /// unwind ever crosses into C.
+#[cfg(feature = "std")]
 pub(crate) fn guard(body: impl FnOnce() -> Result<(), clout_result>) -> clout_result {
     match catch_unwind(AssertUnwindSafe(body)) {
         Ok(Ok(())) => clout_result::Ok,
         Ok(Err(code)) => code,
         Err(_) => clout_result::Panic,
     }
+}
+
+/// Runs an export's body. Without `std` nothing unwinds: a panic (a bug in
+/// the library) reaches [`panic`] below, which aborts.
+#[cfg(not(feature = "std"))]
+pub(crate) fn guard(body: impl FnOnce() -> Result<(), clout_result>) -> clout_result {
+    match body() {
+        Ok(()) => clout_result::Ok,
+        Err(code) => code,
+    }
+}
+
+/// The panic handler of `#![no_std]` builds: an internal bug stops the
+/// program through the C library's `abort` (newlib's ends a semihosted run
+/// with a failure status; a device's C library resets or halts). Firmware
+/// builds use `panic = "abort"`, so nothing unwinds.
+#[cfg(all(not(feature = "std"), not(test)))]
+#[panic_handler]
+fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
+    extern "C" {
+        fn abort() -> !;
+    }
+    // SAFETY: `abort` takes nothing and never returns; every C library has it.
+    unsafe { abort() }
 }
 
 /// Checks a pointer and length pair before a slice is made of them.
@@ -143,6 +173,16 @@ pub(crate) fn write_text(
 
 /// The rule behind a handle, after checking that it points at a live rule.
 pub(crate) fn rule<'a>(handle: *const clout_rule) -> Result<&'a LoadedRule, clout_result> {
+    Ok(&slot(handle)?.rule)
+}
+
+/// The roster digest of the rule behind a handle, if its image had one.
+pub(crate) fn roster(handle: *const clout_rule) -> Result<Option<[u8; image::DIGEST_LEN]>, clout_result> {
+    Ok(slot(handle)?.roster)
+}
+
+/// The Slot behind a handle, after checking that it is live.
+fn slot<'a>(handle: *const clout_rule) -> Result<&'a Slot, clout_result> {
     let first = handle.cast::<u64>();
     check_pointer(first, 1)?;
     // SAFETY: a handle points at a Slot, whose first word is the tag;
@@ -154,7 +194,7 @@ pub(crate) fn rule<'a>(handle: *const clout_rule) -> Result<&'a LoadedRule, clou
         return Err(clout_result::NotARule);
     }
     // SAFETY: the tag says `place_rule` wrote a whole Slot here.
-    Ok(unsafe { &(*slot).rule })
+    Ok(unsafe { &*slot })
 }
 
 /// Words of rule memory an image needs, after checking the image completely.
@@ -188,13 +228,14 @@ fn place_rule(
         slice::from_raw_parts_mut(weights_ptr, weights_len)
     };
     // SlotWeights points where `load_with` wrote the table: into this memory.
-    let rule = image::load_with(image, weights, |table| SlotWeights {
+    let (rule, roster) = image::load_with_roster(image, weights, |table| SlotWeights {
         ptr: table.as_ptr(),
         len: table.len(),
     })?;
     let slot = Slot {
         tag: TAG,
         heap_words,
+        roster,
         rule,
     };
     // At most ALIGN_SLACK bytes from the start, so the Slot stays inside the
@@ -222,6 +263,7 @@ pub(crate) fn load_into(
 
 /// The heap layout of a rule of `words` words: aligned for its Slot, which
 /// therefore starts the allocation.
+#[cfg(feature = "alloc")]
 fn heap_layout(words: usize) -> Result<Layout, clout_result> {
     let bytes = words
         .checked_mul(size_of::<u64>())
@@ -231,6 +273,7 @@ fn heap_layout(words: usize) -> Result<Layout, clout_result> {
 }
 
 /// Loads `image` into memory the library allocates.
+#[cfg(feature = "alloc")]
 pub(crate) fn load_new(image: &[u8]) -> Result<*mut clout_rule, clout_result> {
     let words = rule_words(image)?;
     let layout = heap_layout(words)?;
@@ -245,6 +288,12 @@ pub(crate) fn load_new(image: &[u8]) -> Result<*mut clout_rule, clout_result> {
     })
 }
 
+/// Without the heap there is no library memory to load into.
+#[cfg(not(feature = "alloc"))]
+pub(crate) fn load_new(_: &[u8]) -> Result<*mut clout_rule, clout_result> {
+    Err(clout_result::NotInBuild)
+}
+
 /// Frees a rule from `load_new`; NULL is fine, caller memory is refused.
 pub(crate) fn free(handle: *mut clout_rule) -> Result<(), clout_result> {
     if handle.is_null() {
@@ -257,6 +306,13 @@ pub(crate) fn free(handle: *mut clout_rule) -> Result<(), clout_result> {
     if words == 0 {
         return Err(clout_result::NotHeapRule);
     }
+    free_heap(handle, words)
+}
+
+/// Frees the heap memory of a live rule of `words` words from `load_new`.
+#[cfg(feature = "alloc")]
+fn free_heap(handle: *mut clout_rule, words: usize) -> Result<(), clout_result> {
+    let slot = handle.cast::<Slot>();
     let layout = heap_layout(words)?;
     // SAFETY: a non-zero heap size means `load_new` allocated this memory
     // with this layout, and the Slot (the handle) starts it; clearing the tag
@@ -267,6 +323,12 @@ pub(crate) fn free(handle: *mut clout_rule) -> Result<(), clout_result> {
         dealloc(handle.cast::<u8>(), layout);
     }
     Ok(())
+}
+
+/// Without the heap no rule has heap memory (`heap_words` is always 0).
+#[cfg(not(feature = "alloc"))]
+fn free_heap(_: *mut clout_rule, _: usize) -> Result<(), clout_result> {
+    Err(clout_result::NotHeapRule)
 }
 
 /// A member index for C (member indices are below the core's 65,535 limit).
@@ -289,6 +351,7 @@ mod tests {
     use super::*;
 
     #[test]
+    #[cfg(feature = "std")]
     fn panics_become_a_code() {
         assert_eq!(guard(|| panic!("deliberate")), clout_result::Panic);
         assert_eq!(guard(|| Err(clout_result::NotARule)), clout_result::NotARule);

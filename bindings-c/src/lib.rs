@@ -18,8 +18,15 @@
 //!   `clout_rule_free(NULL)`, which does nothing).
 //! * Short buffers are errors (`CLOUT_RESULT_BUFFER_TOO_SMALL`), never
 //!   truncation.
-//! * No panic crosses the boundary: each export runs inside
-//!   `catch_unwind` and maps a panic to `CLOUT_RESULT_PANIC`.
+//! * No panic crosses the boundary: with feature `std` (the default) each
+//!   export runs inside `catch_unwind` and maps a panic to
+//!   `CLOUT_RESULT_PANIC`; without it (`#![no_std]`, firmware, built with
+//!   `panic = "abort"`) a panic is an internal bug and calls the C
+//!   library's `abort`.
+//! * Features: `std` (default) implies `alloc`. Without `alloc`, nothing
+//!   needs a heap or an allocator: checking, describing, loading into
+//!   caller memory, deciding and critical members work as always, while
+//!   `clout_rule_new` and `clout_power` return `CLOUT_RESULT_NOT_IN_BUILD`.
 //! * Rules live in caller memory (`clout_rule_words`, `clout_rule_load`; no
 //!   heap, nothing to free) or in library memory (`clout_rule_new`,
 //!   `clout_rule_free`). Deciding never allocates; `clout_power` allocates
@@ -30,10 +37,14 @@
 //! All raw pointers and casts live in `src/ffi.rs`; the other modules hold no
 //! `unsafe` (a test checks this).
 
+#![cfg_attr(not(feature = "std"), no_std)]
 #![allow(non_camel_case_types)] // C names: clout_rule, clout_result, ...
 #![warn(missing_docs)]
 #![deny(unsafe_op_in_unsafe_fn)]
 #![deny(clippy::undocumented_unsafe_blocks)]
+
+#[cfg(feature = "alloc")]
+extern crate alloc;
 
 mod ballot;
 mod ffi;
@@ -48,7 +59,8 @@ pub use ballot::{
 pub use ffi::{clout_rule, CLOUT_RULE_HEADER_WORDS};
 pub use power::{clout_power, CLOUT_POWER_MAX_MEMBERS};
 pub use rule::{
-    clout_image_check, clout_image_describe, clout_rule_free, clout_rule_info, clout_rule_load,
-    clout_rule_new, clout_rule_sizes, clout_rule_words, CLOUT_DESCRIPTION_MAX,
+    clout_image_check, clout_image_describe, clout_image_roster_digest, clout_rule_free, clout_rule_info,
+    clout_rule_load, clout_rule_new, clout_rule_roster_digest, clout_rule_sizes, clout_rule_words,
+    CLOUT_DESCRIPTION_MAX, CLOUT_ROSTER_DIGEST_LEN,
 };
 pub use status::{clout_result, clout_result_message, CLOUT_MESSAGE_MAX};

@@ -13,9 +13,20 @@
 //!
 //! Model: every member votes yes or no independently with equal chance.
 
+//! Needs the heap (feature `alloc`); a build without it returns
+//! `CLOUT_RESULT_NOT_IN_BUILD` after the usual argument checks.
+
+#[cfg(feature = "alloc")]
+use alloc::vec::Vec;
+
+#[cfg(feature = "alloc")]
 use clout_core::engine::{self, Scope, Workspace};
-use clout_core::planner::{plan_within, Limits, DEFAULT_BUDGET, DEFAULT_MEMORY};
-use clout_core::{MemberCounts, Meter, PowerTable};
+#[cfg(feature = "alloc")]
+use clout_core::planner::{plan_within, Limits};
+use clout_core::planner::{DEFAULT_BUDGET, DEFAULT_MEMORY};
+#[cfg(feature = "alloc")]
+use clout_core::Meter;
+use clout_core::{MemberCounts, PowerTable, RuleCounts};
 
 use crate::ffi::{self, clout_rule, LoadedRule};
 use crate::status::clout_result;
@@ -25,11 +36,12 @@ pub const CLOUT_POWER_MAX_MEMBERS: usize = 64;
 
 /// Exact counts for every member, by the planner's engine, within
 /// `budget` steps and `memory` bytes.
+#[cfg(feature = "alloc")]
 pub(crate) fn count(
     rule: &LoadedRule,
     budget: u128,
     memory: u64,
-) -> Result<(clout_core::RuleCounts<u128>, Vec<MemberCounts<u128>>), clout_result> {
+) -> Result<(RuleCounts<u128>, Vec<MemberCounts<u128>>), clout_result> {
     let limits = Limits {
         budget,
         memory,
@@ -49,11 +61,18 @@ pub(crate) fn count(
     Ok((totals, members))
 }
 
+/// Without the heap there is no scratch to count in.
+#[cfg(not(feature = "alloc"))]
+fn count(_: &LoadedRule, _: u128, _: u64) -> Result<(RuleCounts<u128>, [MemberCounts<u128>; 0]), clout_result> {
+    Err(clout_result::NotInBuild)
+}
+
 /// Computes each member's swing count (winning coalitions that lose
 /// without the member), normalized Banzhaf index and Shapley-Shubik index
 /// into three caller arrays of `len >= members` entries each (entries from
 /// `members` on are left alone). Rules of more than
 /// `CLOUT_POWER_MAX_MEMBERS` members give `CLOUT_RESULT_POWER_CAPACITY`.
+/// A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
 #[no_mangle]
 pub extern "C" fn clout_power(
     rule: *const clout_rule,

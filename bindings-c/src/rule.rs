@@ -3,6 +3,7 @@
 
 use core::ffi::c_char;
 use core::fmt::{self, Write};
+use core::mem::MaybeUninit;
 
 use clout_core::image;
 
@@ -98,6 +99,7 @@ pub extern "C" fn clout_rule_load(
 
 /// Loads an image into memory the library allocates; release it with
 /// `clout_rule_free`. The image bytes are no longer needed after the call.
+/// A build without the heap returns `CLOUT_RESULT_NOT_IN_BUILD`.
 #[no_mangle]
 pub extern "C" fn clout_rule_new(
     image: *const u8,
@@ -117,6 +119,59 @@ pub extern "C" fn clout_rule_new(
 #[no_mangle]
 pub extern "C" fn clout_rule_free(rule: *mut clout_rule) -> clout_result {
     ffi::guard(|| ffi::free(rule))
+}
+
+/// Bytes of a roster digest (SHA-256 of the ordered member names and
+/// weights; docs/image-format.md).
+pub const CLOUT_ROSTER_DIGEST_LEN: usize = 32;
+const _: () = assert!(CLOUT_ROSTER_DIGEST_LEN == image::DIGEST_LEN);
+
+/// Writes the roster digest of an image (`CLOUT_ROSTER_DIGEST_LEN` bytes)
+/// into `digest` (`digest_len` at least that), after checking the image
+/// completely. A device that knows the digest of the roster it serves
+/// compares the two and refuses an image compiled for another roster.
+/// A version-1 image has none: `CLOUT_RESULT_IMAGE_NO_ROSTER`.
+#[no_mangle]
+pub extern "C" fn clout_image_roster_digest(
+    image: *const u8,
+    image_len: usize,
+    digest: *mut u8,
+    digest_len: usize,
+) -> clout_result {
+    ffi::guard(|| {
+        let bytes = ffi::input(image, image_len)?;
+        let out = ffi::output(digest, digest_len)?;
+        let found = image::roster(bytes)?.map(|r| r.digest);
+        write_digest(found, out)
+    })
+}
+
+/// Writes the roster digest of the image a rule was loaded from, as
+/// `clout_image_roster_digest` does.
+#[no_mangle]
+pub extern "C" fn clout_rule_roster_digest(
+    rule: *const clout_rule,
+    digest: *mut u8,
+    digest_len: usize,
+) -> clout_result {
+    ffi::guard(|| {
+        let found = ffi::roster(rule)?;
+        write_digest(found, ffi::output(digest, digest_len)?)
+    })
+}
+
+fn write_digest(
+    found: Option<[u8; CLOUT_ROSTER_DIGEST_LEN]>,
+    out: &mut [MaybeUninit<u8>],
+) -> Result<(), clout_result> {
+    let digest = found.ok_or(clout_result::ImageNoRoster)?;
+    let out = out
+        .get_mut(..CLOUT_ROSTER_DIGEST_LEN)
+        .ok_or(clout_result::BufferTooSmall)?;
+    for (slot, &b) in out.iter_mut().zip(digest.iter()) {
+        slot.write(b);
+    }
+    Ok(())
 }
 
 /// Writes the sizes of a loaded rule into `*sizes`.

@@ -39,6 +39,9 @@ pub enum clout_result {
     LengthTooLarge = 8,
     /// The library met an error this version cannot name. Please report it.
     Internal = 9,
+    /// This build of the library leaves the function out (a firmware build
+    /// without the heap: `clout_rule_new`, `clout_power`).
+    NotInBuild = 10,
     /// Not a rule image: the magic bytes are wrong.
     ImageMagic = 100,
     /// The image is shorter than its header, or than the length it declares.
@@ -57,6 +60,12 @@ pub enum clout_result {
     ImageNodeKind = 107,
     /// A condition has an unknown kind.
     ImageConditionKind = 108,
+    /// The image's member names are malformed.
+    ImageNames = 109,
+    /// The image's roster digest does not match its names and weights.
+    ImageRoster = 110,
+    /// The image has no roster digest (format version 1).
+    ImageNoRoster = 111,
     /// The rule has no members.
     NoMembers = 200,
     /// More members than this build holds.
@@ -100,7 +109,7 @@ pub enum clout_result {
 
 impl clout_result {
     /// Every code, in value order.
-    pub const ALL: [clout_result; 38] = {
+    pub const ALL: [clout_result; 42] = {
         use clout_result::*;
         [
             Ok,
@@ -113,6 +122,7 @@ impl clout_result {
             NotHeapRule,
             LengthTooLarge,
             Internal,
+            NotInBuild,
             ImageMagic,
             ImageTruncated,
             ImageVersion,
@@ -122,6 +132,9 @@ impl clout_result {
             ImageLayout,
             ImageNodeKind,
             ImageConditionKind,
+            ImageNames,
+            ImageRoster,
+            ImageNoRoster,
             NoMembers,
             TooManyMembers,
             TooManyAttributes,
@@ -167,6 +180,7 @@ impl clout_result {
             }
             LengthTooLarge => "a length is larger than any buffer can be",
             Internal => "internal error; please report it",
+            NotInBuild => "this build of the library leaves the function out (built without the heap)",
             ImageMagic => "not a clout rule image (wrong magic bytes)",
             ImageTruncated => "image truncated: shorter than its header or declared length",
             ImageVersion => "image format version not supported; compile the rule again",
@@ -176,6 +190,9 @@ impl clout_result {
             ImageLayout => "image length does not match its sections",
             ImageNodeKind => "image has a formula node of unknown kind",
             ImageConditionKind => "image has a condition of unknown kind",
+            ImageNames => "image has malformed member names",
+            ImageRoster => "image damaged: the roster digest does not match its names and weights",
+            ImageNoRoster => "image has no roster digest (format version 1); compile the rule again",
             NoMembers => "the rule has no members",
             TooManyMembers => "the rule has more members than this build holds",
             TooManyAttributes => "the rule has more than 64 weight attributes",
@@ -242,6 +259,8 @@ impl From<ImageError> for clout_result {
             ImageError::BadConditionKind { .. } => ImageConditionKind,
             ImageError::Rule(e) => e.into(),
             ImageError::BufferTooSmall { .. } => BufferTooSmall,
+            ImageError::BadNames { .. } => ImageNames,
+            ImageError::RosterMismatch => ImageRoster,
             _ => Internal,
         }
     }

@@ -158,8 +158,9 @@ fn images() -> Vec<(&'static str, Vec<u8>)> {
     bad_checksum[21] = 5;
     let too_many_members = (clout_core::limits::MAX_MEMBERS as u32 + 1).to_le_bytes();
     let mut too_deep = image::encode(&deep);
-    let crc_at = too_deep.len() - CHECKSUM_LEN;
-    too_deep.splice(crc_at..crc_at, [1, 1, 0]);
+    // One more node after the formula, before the roster section (no names).
+    let roster_at = too_deep.len() - CHECKSUM_LEN - image::ROSTER_LEN;
+    too_deep.splice(roster_at..roster_at, [1, 1, 0]);
     too_deep[18] += 1;
     let len = too_deep.len() as u8;
     too_deep[8] = len;
@@ -170,13 +171,22 @@ fn images() -> Vec<(&'static str, Vec<u8>)> {
 
     vec![
         ("eec.img", eec.clone()),
+        // The same rule in format version 1 (docs/image-format.md), which has
+        // no roster section: still loaded, but without a digest.
+        (
+            "eec-v1.img",
+            vec![
+                0x89, 0x43, 0x4C, 0x52, 1, 0, 1, 0, 45, 0, 0, 0, 6, 0, 0, 0, 1, 0, 1, 0, 1, 4, 4, 4, 2, 2, 1,
+                0, 0, 0, 12, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0xA0, 0x48, 0xA3, 0x7C,
+            ],
+        ),
         ("committee.img", image::encode(&committee)),
         ("board.img", image::encode(&allotment_board())),
         ("assembly.img", image::encode(&assembly)),
         ("costly.img", image::encode(&costly)),
         ("damaged-magic.img", patched(&eec, 0, b"GIF8")),
         ("damaged-truncated.img", eec[..eec.len() - 1].to_vec()),
-        ("damaged-version.img", patched(&eec, 4, &[2, 0])),
+        ("damaged-version.img", patched(&eec, 4, &[3, 0])),
         ("damaged-trailing.img", trailing),
         ("damaged-checksum.img", bad_checksum),
         ("damaged-width.img", patched(&eec, 20, &[3])),

@@ -26,7 +26,9 @@ use clout::drafting::{
 };
 use clout::language::diagnostic::Severity;
 use clout::language::syntax::{decode, MAX_SOURCE_LEN};
+use clout::language::Tables;
 use clout::report::{self, Options};
+use clout::tables::Folder;
 use clout::toolkit::sweep::Level;
 use clout::{CompiledRule, Diagnostic, Failure, FailureKind};
 use pyo3::prelude::*;
@@ -143,8 +145,13 @@ fn rule_error(py: Python<'_>, name: &str, source: &str, errors: &[Diagnostic]) -
     }
 }
 
-fn compile(py: Python<'_>, name: String, source: String) -> PyResult<RuleFile> {
-    match py.detach(|| clout::compile(&source)) {
+fn compile(
+    py: Python<'_>,
+    name: String,
+    source: String,
+    tables: &mut (dyn Tables + Send),
+) -> PyResult<RuleFile> {
+    match py.detach(|| clout::language::compile_with(&source, tables)) {
         Ok(file) => Ok(RuleFile { name, source, file }),
         Err(errors) => Err(rule_error(py, &name, &source, &errors)),
     }
@@ -152,23 +159,32 @@ fn compile(py: Python<'_>, name: String, source: String) -> PyResult<RuleFile> {
 
 /// Compiles rule text (the clout rule language, or `[q; w1, ..., wn]`).
 ///
-/// `name` is shown in error messages. Raises `RuleError` with the line and
-/// column of every error.
+/// `name` is shown in error messages. `tables` maps each table a
+/// `members NAME from "FILE"` declaration reads, by the path written in the
+/// text, to its contents (CSV or JSON text). Raises `RuleError` with the
+/// line and column of every error.
 #[pyfunction]
-#[pyo3(signature = (text, name = "<string>"))]
-fn parse(py: Python<'_>, text: String, name: &str) -> PyResult<RuleFile> {
+#[pyo3(signature = (text, name = "<string>", tables = None))]
+fn parse(
+    py: Python<'_>,
+    text: String,
+    name: &str,
+    tables: Option<std::collections::HashMap<String, String>>,
+) -> PyResult<RuleFile> {
     if text.len() > MAX_SOURCE_LEN {
         if let Err(d) = decode(text.as_bytes()) {
             return Err(rule_error(py, name, &text, &[d]));
         }
     }
-    compile(py, name.to_string(), text)
+    let mut tables = tables.unwrap_or_default();
+    compile(py, name.to_string(), text, &mut tables)
 }
 
-/// Reads and compiles a rule file (at most 8 MiB of UTF-8 text).
+/// Reads and compiles a rule file (at most 8 MiB of UTF-8 text); the
+/// tables it reads are read from its folder, as the command line does.
 ///
 /// Raises `OSError` when the file cannot be read and `RuleError` when it
-/// is not valid rule text.
+/// is not valid rule text or a table cannot be read.
 #[pyfunction]
 fn load(py: Python<'_>, path: std::path::PathBuf) -> PyResult<RuleFile> {
     let name = path.display().to_string();
@@ -181,7 +197,7 @@ fn load(py: Python<'_>, path: std::path::PathBuf) -> PyResult<RuleFile> {
         Ok(bytes)
     })?;
     match decode(&bytes) {
-        Ok(text) => compile(py, name, text.to_string()),
+        Ok(text) => compile(py, name, text.to_string(), &mut Folder::beside(&path)),
         Err(d) => Err(rule_error(py, &name, &String::from_utf8_lossy(&bytes), &[d])),
     }
 }
@@ -206,7 +222,7 @@ fn game(py: Python<'_>, quota: i128, weights: Vec<i128>) -> PyResult<RuleFile> {
         parts.push(check(format!("weights[{i}]"), w)?);
     }
     let text = format!("[{}; {}]", check("quota".to_string(), quota)?, parts.join(", "));
-    compile(py, "game".to_string(), text)
+    compile(py, "game".to_string(), text, &mut clout::language::NoTables)
 }
 
 /// Integer weights and a quota whose normalized Banzhaf index is closest to
@@ -528,7 +544,7 @@ impl RuleFile {
     #[pyo3(signature = (rule = None))]
     fn image<'py>(&self, py: Python<'py>, rule: Option<&str>) -> PyResult<Bound<'py, PyBytes>> {
         let r = self.rule(py, rule)?;
-        let bytes = detached(py, |_| image(r))?;
+        let bytes = detached(py, |_| image(&self.file, r))?;
         Ok(PyBytes::new(py, &bytes))
     }
 }
@@ -540,19 +556,10 @@ impl RuleFile {
     }
 }
 
-/// The image of a rule, loaded back and compared before it is returned.
-fn image(rule: &CompiledRule) -> Result<Vec<u8>, Failure> {
-    let bytes = clout::image::encode(&rule.rule);
-    let needed = clout::image::weights_needed(&bytes).map_err(|e| Failure::input(e.to_string()))?;
-    let mut weights = vec![0u64; needed];
-    let loaded =
-        clout::image::load(&bytes, &mut weights).map_err(|e| Failure::input(format!("internal: {e}")))?;
-    if loaded != rule.rule.as_borrowed() {
-        return Err(Failure::input(
-            "internal: the image does not load back to the same rule",
-        ));
-    }
-    Ok(bytes)
+/// The image of a rule with its names, loaded back and compared before it
+/// is returned (what `clout compile` writes).
+fn image(file: &clout::RuleFile, rule: &CompiledRule) -> Result<Vec<u8>, Failure> {
+    clout::images::named_image(file, rule)
 }
 
 /// Exact voting power, decisions and drafting tools for weighted, compound

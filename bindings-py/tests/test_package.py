@@ -6,6 +6,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 import clout
 
 from conftest import ROOT
@@ -43,3 +45,23 @@ def test_the_example_script_runs():
     )
     assert done.returncode == 0, done.stderr
     assert "weighted: True" in done.stdout and "line 2, column 27" in done.stdout
+
+
+def test_load_reads_the_tables_beside_the_rule_file():
+    f = clout.load(ROOT / "examples" / "treasury.clout")
+    with open(ROOT / "examples" / "holders.csv") as table:
+        rows = sum(1 for _ in table) - 1
+    assert len(f.members) == rows
+    assert f.members[0] == "0x5380315e7512aa1eddaf8184dbe5114bafb885b4"
+
+
+def test_parse_takes_tables_by_the_path_written_in_the_text():
+    text = 'members party from "parties.csv" name=name seats=seats\nrule pass = seats > 1/2\n'
+    table = "name,seats\nleft,5\ncentre,3\nright,4\n"
+    f = clout.parse(text, tables={"parties.csv": table})
+    assert f.members == ["left", "centre", "right"]
+    assert f.decide(yes=["left", "right"])["passed"] is True
+    with pytest.raises(clout.RuleError) as missing:
+        clout.parse(text)
+    assert "parties.csv" in str(missing.value)
+    assert (missing.value.line, missing.value.column) == (1, 20)

@@ -8,6 +8,10 @@ use clout_dsl::diagnostic::closest;
 use clout_dsl::syntax::{decode, MAX_SOURCE_LEN};
 use clout_dsl::{compile_with, render_all, CompiledRule, RuleFile};
 
+use clout::tables::Folder;
+pub use clout::tables::{describe_io, read_bounded};
+use clout_dsl::Tables;
+
 use crate::Failure;
 
 /// The demo rule file analysed by `clout report` without arguments.
@@ -59,6 +63,10 @@ impl Input {
     /// absolute paths are read: a relative one has no folder to be relative to.
     fn compile(name: String, source: String, demo: bool, base: Option<PathBuf>) -> Result<Input, Failure> {
         let mut stdin_used = false;
+        let mut folder = match &base {
+            Some(dir) => Folder::at(dir.clone()),
+            None => Folder::none(),
+        };
         let mut tables = |path: &str| -> Result<(String, Vec<u8>), String> {
             if path == "-" {
                 if base.is_none() || stdin_used {
@@ -68,20 +76,7 @@ impl Input {
                 let bytes = read_bounded(std::io::stdin(), MAX_TABLE_LEN).map_err(|e| describe_io(&e))?;
                 return Ok(("<stdin>".to_string(), bytes));
             }
-            let full = match &base {
-                Some(dir) => dir.join(path),
-                None if Path::new(path).is_absolute() => PathBuf::from(path),
-                None => {
-                    return Err(
-                        "a rule read from standard input has no folder for relative paths; save it beside its tables, or name them by absolute paths"
-                            .to_string(),
-                    )
-                }
-            };
-            let bytes = std::fs::File::open(&full)
-                .and_then(|f| read_bounded(f, MAX_TABLE_LEN))
-                .map_err(|e| format!("{} ({})", describe_io(&e), full.display()))?;
-            Ok((full.display().to_string(), bytes))
+            folder.table(path)
         };
         match compile_with(&source, &mut tables) {
             Ok(file) => Ok(Input {
@@ -127,14 +122,6 @@ impl Input {
     }
 }
 
-/// Reads at most one byte more than `limit` (what the language accepts), so
-/// a huge or endless input (`/dev/zero`) is refused without reading it all.
-pub fn read_bounded(reader: impl std::io::Read, limit: usize) -> std::io::Result<Vec<u8>> {
-    let mut bytes = Vec::new();
-    std::io::Read::read_to_end(&mut reader.take(limit as u64 + 1), &mut bytes)?;
-    Ok(bytes)
-}
-
 /// The bytes as text, or the error at the first byte that is not UTF-8 (or past the size limit).
 fn text(bytes: Vec<u8>, name: &str) -> Result<String, Failure> {
     match decode(&bytes) {
@@ -144,14 +131,5 @@ fn text(bytes: Vec<u8>, name: &str) -> Result<String, Failure> {
             text.push_str(&format!("1 error in {name}\n"));
             Err(Failure::rendered(text))
         }
-    }
-}
-
-fn describe_io(e: &std::io::Error) -> String {
-    match e.kind() {
-        std::io::ErrorKind::NotFound => "no such file".to_string(),
-        std::io::ErrorKind::InvalidData => "the file is not UTF-8 text".to_string(),
-        std::io::ErrorKind::PermissionDenied => "permission denied".to_string(),
-        _ => e.to_string(),
     }
 }

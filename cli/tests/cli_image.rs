@@ -90,3 +90,122 @@ fn damaged_images_exit_2_with_the_reason() {
     assert_eq!(run.code, 2);
     assert!(run.stderr.contains("hint"), "{}", run.stderr);
 }
+
+/// The digest line `clout compile` and `clout inspect` print.
+fn digest_line(text: &str) -> String {
+    text.lines()
+        .find(|l| l.contains("roster digest"))
+        .and_then(|l| l.split_whitespace().find(|w| w.len() >= 64))
+        .map(|w| w.trim_end_matches(',').to_string())
+        .unwrap_or_default()
+}
+
+#[test]
+fn images_name_their_members_and_pin_the_roster() {
+    let rule = "member ash weight=3\nmember birch weight=2\nmember \"cedar\\u{202E}x\" weight=2\nrule pass = weight >= 4\n";
+    let changed = rule.replace("birch weight=2", "birch weight=1");
+    let (a, b) = (tmp("roster-a.clout"), tmp("roster-b.clout"));
+    std::fs::write(&a, rule).expect("write");
+    std::fs::write(&b, &changed).expect("write");
+    let (ai, bi, h) = (tmp("roster-a.img"), tmp("roster-b.img"), tmp("roster-a.h"));
+    let args = |src: &std::path::Path, img: &std::path::Path| {
+        vec![
+            "compile".to_string(),
+            src.display().to_string(),
+            "-o".to_string(),
+            img.display().to_string(),
+        ]
+    };
+    let mut with_header = args(&a, &ai);
+    with_header.extend(["--c-header".to_string(), h.display().to_string()]);
+    let refs: Vec<&str> = with_header.iter().map(String::as_str).collect();
+    let run_a = clout_with_input(&refs, "");
+    assert_eq!(run_a.code, 0, "{}", run_a.stderr);
+    assert!(run_a.stdout.contains("rule memory: "), "{}", run_a.stdout);
+    let refs_b = args(&b, &bi);
+    let refs_b: Vec<&str> = refs_b.iter().map(String::as_str).collect();
+    let run_b = clout_with_input(&refs_b, "");
+    assert_eq!(run_b.code, 0, "{}", run_b.stderr);
+
+    let inspect = clout_with_input(&["inspect", ai.to_str().expect("path")], "");
+    assert_eq!(inspect.code, 0, "{}", inspect.stdout);
+    assert!(
+        inspect.stdout.contains("rule pass; members by index:"),
+        "{}",
+        inspect.stdout
+    );
+    assert!(
+        inspect.stdout.contains("  0 ash\n  1 birch\n"),
+        "{}",
+        inspect.stdout
+    );
+    // A bidirectional override in a name is shown escaped, never raw.
+    assert!(
+        inspect.stdout.contains("  2 \"cedar\\u{202e}x\"\n"),
+        "{}",
+        inspect.stdout
+    );
+    assert!(!inspect.stdout.contains('\u{202E}'));
+    let digest_a = digest_line(&inspect.stdout);
+    assert_eq!(digest_a.len(), 64, "{}", inspect.stdout);
+    assert_eq!(digest_line(&run_a.stdout), digest_a, "compile and inspect agree");
+    // One weight changed: another digest.
+    let inspect_b = clout_with_input(&["inspect", bi.to_str().expect("path")], "");
+    assert_ne!(digest_line(&inspect_b.stdout), digest_a);
+
+    // The C header: the image bytes, sizes, digest and member indices.
+    let header = std::fs::read_to_string(&h).expect("header");
+    let image = std::fs::read(&ai).expect("image");
+    assert!(
+        header.contains(&format!("#define RULE_IMAGE_LEN {}u", image.len())),
+        "{header}"
+    );
+    assert!(header.contains("#define RULE_MEMBER_ASH 0u"), "{header}");
+    assert!(header.contains("#define RULE_MEMBER_BIRCH 1u"), "{header}");
+    assert!(
+        header.contains("#define RULE_MEMBER_CEDAR___X 2u")
+            || header.contains("#define RULE_MEMBER_CEDAR_X 2u"),
+        "{header}"
+    );
+    let first = format!("0x{:02X}, 0x{:02X},", image[0], image[1]);
+    assert!(header.contains(&first), "{header}");
+    let digest_bytes: String = (0..4)
+        .map(|i| format!("0x{}, ", &digest_a[2 * i..2 * i + 2].to_uppercase()))
+        .collect();
+    assert!(header.contains(digest_bytes.trim_end_matches(", ")), "{header}");
+    let mut words = 0usize;
+    assert_eq!(
+        clout_c::clout_rule_words(image.as_ptr(), image.len(), &mut words),
+        clout_c::clout_result::Ok
+    );
+    assert!(
+        header.contains(&format!("#define RULE_WORDS {words}u")),
+        "{header}"
+    );
+
+    // Two names that become one C name are refused.
+    let clash = tmp("clash.clout");
+    std::fs::write(
+        &clash,
+        "member a_b weight=1\nmember \"a-b\" weight=1\nrule r = weight >= 1\n",
+    )
+    .expect("write");
+    let clash_h = tmp("clash.h");
+    let run = clout_with_input(
+        &[
+            "compile",
+            clash.to_str().expect("path"),
+            "-o",
+            tmp("clash.img").to_str().expect("path"),
+            "--c-header",
+            clash_h.to_str().expect("path"),
+        ],
+        "",
+    );
+    assert_eq!(run.code, 2, "{}", run.stdout);
+    assert!(
+        run.stderr.contains("both become RULE_MEMBER_A_B"),
+        "{}",
+        run.stderr
+    );
+}

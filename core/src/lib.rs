@@ -111,7 +111,9 @@ pub use analysis::planner;
 pub use analysis::PowerTable;
 #[cfg(feature = "alloc")]
 pub use analysis::{analyze, analyze_metered, analyze_opts, analyze_with, Analysis, Options};
-pub use device::decide::{critical, decide, decide_ballot, decide_into, AtomTally, Decision};
+pub use device::decide::{
+    critical, decide, decide_ballot, decide_ballot_each, decide_each, decide_into, AtomTally, Decision,
+};
 pub use device::image;
 pub use device::image::{ImageError, ImageInfo};
 #[cfg(feature = "alloc")]

@@ -344,7 +344,7 @@ static int test_describe(void) {
     char text[CLOUT_DESCRIPTION_MAX], tiny[8] = "";
     size_t written = 0, untouched = 7;
     image_len = read_image("eec.img", image, sizeof image);
-    CHECK(image_len == 45);
+    CHECK(image_len == 81);
     CHECK_CODE(clout_image_check(image, image_len), CLOUT_RESULT_OK);
     CHECK_CODE(clout_image_describe(image, image_len, text, sizeof text, &written), CLOUT_RESULT_OK);
     CHECK(strstr(text, "6 members, 1 weight attributes, 1 conditions") != NULL);
@@ -352,6 +352,33 @@ static int test_describe(void) {
     CHECK_CODE(clout_image_describe(image, image_len, tiny, sizeof tiny, &untouched),
                CLOUT_RESULT_BUFFER_TOO_SMALL);
     CHECK(untouched == 7 && tiny[0] == '\0');
+    return 1;
+}
+
+/* The roster digest: the same from the image and from the loaded rule, the
+ * bytes docs/image-format.md gives for [12; 4,4,4,2,2,1] without names
+ * (computed there with Python's hashlib); a version-1 image still loads but
+ * has none. */
+static int test_roster_digest(void) {
+    static const uint8_t expected[CLOUT_ROSTER_DIGEST_LEN] = {
+        0x83, 0xcf, 0x7c, 0xc4, 0xcf, 0xab, 0x02, 0x8f, 0xb1, 0x0c, 0xa0, 0x4d, 0x3f, 0x11, 0x45, 0x4a,
+        0xc9, 0x8e, 0x6a, 0x91, 0x87, 0xd0, 0xd5, 0x59, 0xd5, 0x67, 0xc6, 0x5c, 0x3e, 0x31, 0xbd, 0x17};
+    uint8_t from_image[CLOUT_ROSTER_DIGEST_LEN], from_rule[CLOUT_ROSTER_DIGEST_LEN], shortbuf[31];
+    uint64_t mem[CLOUT_RULE_HEADER_WORDS + 6];
+    const clout_rule *rule;
+    image_len = read_image("eec.img", image, sizeof image);
+    CHECK_CODE(clout_image_roster_digest(image, image_len, from_image, sizeof from_image), CLOUT_RESULT_OK);
+    CHECK(memcmp(from_image, expected, sizeof expected) == 0);
+    CHECK_CODE(clout_image_roster_digest(image, image_len, shortbuf, sizeof shortbuf), CLOUT_RESULT_BUFFER_TOO_SMALL);
+    CHECK_CODE(clout_rule_load(image, image_len, mem, CLOUT_RULE_HEADER_WORDS + 6, &rule), CLOUT_RESULT_OK);
+    CHECK_CODE(clout_rule_roster_digest(rule, from_rule, sizeof from_rule), CLOUT_RESULT_OK);
+    CHECK(memcmp(from_rule, expected, sizeof expected) == 0);
+    image_len = read_image("eec-v1.img", image, sizeof image);
+    CHECK(image_len == 45);
+    CHECK_CODE(clout_image_roster_digest(image, image_len, from_image, sizeof from_image),
+               CLOUT_RESULT_IMAGE_NO_ROSTER);
+    CHECK_CODE(clout_rule_load(image, image_len, mem, CLOUT_RULE_HEADER_WORDS + 6, &rule), CLOUT_RESULT_OK);
+    CHECK_CODE(clout_rule_roster_digest(rule, from_rule, sizeof from_rule), CLOUT_RESULT_IMAGE_NO_ROSTER);
     return 1;
 }
 
@@ -460,16 +487,19 @@ static int test_not_a_rule(void) {
  * produce: PANIC (a library bug; Rust unit test ffi::panics_become_a_code),
  * MISALIGNED (a misaligned pointer is undefined behaviour in C itself; Rust
  * unit test ffi::pointers_are_checked), OUT_OF_MEMORY (the system refusing
- * memory), INTERNAL, COUNT_OVERFLOW (counts of at most 64 members fit the
+ * memory), INTERNAL, NOT_IN_BUILD (this suite runs on a build with the
+ * heap; tests/firmware.rs covers it), COUNT_OVERFLOW (counts of at most 64 members fit the
  * 128-bit counter) and NO_ENGINE (some engine always estimates a cost). */
 static int test_messages(void) {
     static const clout_result all[] = {
         CLOUT_RESULT_OK, CLOUT_RESULT_NULL_ARGUMENT, CLOUT_RESULT_BUFFER_TOO_SMALL, CLOUT_RESULT_PANIC,
         CLOUT_RESULT_OUT_OF_MEMORY, CLOUT_RESULT_MISALIGNED, CLOUT_RESULT_NOT_A_RULE,
         CLOUT_RESULT_NOT_HEAP_RULE, CLOUT_RESULT_LENGTH_TOO_LARGE, CLOUT_RESULT_INTERNAL,
+        CLOUT_RESULT_NOT_IN_BUILD,
         CLOUT_RESULT_IMAGE_MAGIC, CLOUT_RESULT_IMAGE_TRUNCATED, CLOUT_RESULT_IMAGE_VERSION,
         CLOUT_RESULT_IMAGE_TRAILING_BYTES, CLOUT_RESULT_IMAGE_CHECKSUM, CLOUT_RESULT_IMAGE_WIDTH,
         CLOUT_RESULT_IMAGE_LAYOUT, CLOUT_RESULT_IMAGE_NODE_KIND, CLOUT_RESULT_IMAGE_CONDITION_KIND,
+        CLOUT_RESULT_IMAGE_NAMES, CLOUT_RESULT_IMAGE_ROSTER, CLOUT_RESULT_IMAGE_NO_ROSTER,
         CLOUT_RESULT_NO_MEMBERS,
         CLOUT_RESULT_TOO_MANY_MEMBERS, CLOUT_RESULT_TOO_MANY_ATTRIBUTES, CLOUT_RESULT_TOO_MANY_CONDITIONS,
         CLOUT_RESULT_TOO_MANY_NODES, CLOUT_RESULT_TOO_DEEP, CLOUT_RESULT_WEIGHT_SUM_OVERFLOW,
@@ -481,7 +511,7 @@ static int test_messages(void) {
     };
     size_t n = sizeof all / sizeof all[0], i, j, written;
     char text[CLOUT_MESSAGE_MAX], unknown[CLOUT_MESSAGE_MAX];
-    CHECK(n == 38);
+    CHECK(n == 42);
     for (i = 0; i < n; i++) {
         for (j = 0; j < i; j++) CHECK(all[i] != all[j]);
         CHECK_CODE(clout_result_message(all[i], text, sizeof text, &written), CLOUT_RESULT_OK);
@@ -569,6 +599,7 @@ int main(int argc, char **argv) {
         {"test_too_costly", test_too_costly},
         {"test_damaged_images", test_damaged_images},
         {"test_describe", test_describe},
+        {"test_roster_digest", test_roster_digest},
         {"test_null_arguments", test_null_arguments},
         {"test_short_buffers", test_short_buffers},
         {"test_bad_ballots", test_bad_ballots},

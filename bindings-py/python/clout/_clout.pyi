@@ -126,11 +126,17 @@ class RuleFile:
     def image(self, rule: Optional[str] = None) -> bytes:
         """The rule as a binary image for devices and the C ABI (``clout compile``'s bytes)."""
 
-def parse(text: str, name: str = "<string>") -> RuleFile:
-    """Compiles rule text; raises :class:`RuleError` with line and column."""
+def parse(
+    text: str, name: str = "<string>", tables: Optional[Mapping[str, str]] = None
+) -> RuleFile:
+    """Compiles rule text; raises :class:`RuleError` with line and column.
+
+    ``tables`` maps each table that a ``members NAME from "FILE"`` line
+    reads, by the path written there, to its CSV or JSON text."""
 
 def load(path: Union[str, "PathLike[str]"]) -> RuleFile:
-    """Reads and compiles a rule file; :class:`OSError` or :class:`RuleError`."""
+    """Reads and compiles a rule file and the tables it reads (beside it);
+    :class:`OSError` or :class:`RuleError`."""
 
 def game(quota: int, weights: Sequence[int]) -> RuleFile:
     """The weighted game ``[quota; w1, ..., wn]`` (members p1..pn, rule "game")."""

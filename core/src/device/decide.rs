@@ -7,6 +7,7 @@
 //! attribute's total was checked when the rule was built, and four-state
 //! conditions are evaluated exactly in `i128`.
 
+use crate::model::atom::Atom;
 use crate::model::ballot::Ballot;
 use crate::model::coalition::Coalition;
 use crate::model::error::Error;
@@ -89,20 +90,93 @@ pub fn decide_into<W: AsRef<[u64]>, const B: usize>(
     let mut sums = [0u64; MAX_ATTRIBUTES];
     rule.yes_sums(yes, &mut sums)?;
     for (atom, slot) in atoms.iter().zip(out.iter_mut()) {
-        let a = usize::from(atom.attribute);
-        let sum = sums.get(a).copied().unwrap_or(0);
-        // Two states: everyone present; the binary quota is exact for
-        // linear forms too (Linear::binary_quota).
-        let no = rule.total(a).saturating_sub(sum);
-        *slot = AtomTally {
-            sum,
-            quota: atom.quota,
-            met: sum >= atom.quota,
-            no,
-            abstain: 0,
-        };
+        *slot = two_state_tally(
+            rule,
+            atom,
+            sums.get(usize::from(atom.attribute)).copied().unwrap_or(0),
+        );
     }
     Ok(rule.eval(|i| out.get(i).is_some_and(|t| t.met)))
+}
+
+/// The tally of a threshold atom whose attribute sums to `sum` over the
+/// yes-voters, everyone else voting no. The binary quota is exact for
+/// linear forms too (`Linear::binary_quota`).
+fn two_state_tally<W: AsRef<[u64]>>(rule: &Rule<W>, atom: &Atom, sum: u64) -> AtomTally {
+    AtomTally {
+        sum,
+        quota: atom.quota,
+        met: sum >= atom.quota,
+        no: rule.total(usize::from(atom.attribute)).saturating_sub(sum),
+        abstain: 0,
+    }
+}
+
+/// The tally of atom `i` given its attribute's yes, no and abstain sums.
+fn four_state_tally<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    i: usize,
+    atom: &Atom,
+    y: u64,
+    n: u64,
+    ab: u64,
+) -> AtomTally {
+    let met = match rule.linear(i) {
+        Some(l) => l.holds(y, n, ab),
+        None => y >= atom.quota,
+    };
+    AtomTally {
+        sum: y,
+        quota: atom.quota,
+        met,
+        no: n,
+        abstain: ab,
+    }
+}
+
+/// [`decide`] on a small fixed stack, for devices: no per-attribute array
+/// and no [`Decision`]. Each atom's tally goes to `each(atom, tally)` in atom
+/// order; returns whether the motion passes. Each atom sums its attribute
+/// afresh: O(atoms * yes-voters + nodes), a few dozen bytes of stack.
+pub fn decide_each<W: AsRef<[u64]>, const B: usize>(
+    rule: &Rule<W>,
+    yes: &Coalition<B>,
+    mut each: impl FnMut(usize, AtomTally),
+) -> Result<bool, Error> {
+    rule.check_members(yes)?;
+    let mut met = 0u64;
+    for (k, atom) in rule.atoms().iter().enumerate() {
+        let tally = two_state_tally(rule, atom, rule.sum_over(usize::from(atom.attribute), yes));
+        // k < MAX_ATOMS = 64.
+        met |= u64::from(tally.met) << k;
+        each(k, tally);
+    }
+    Ok(rule.eval(|i| (met >> i) & 1 == 1))
+}
+
+/// [`decide_ballot`] on a small fixed stack, as [`decide_each`] is for
+/// [`decide`]: O(atoms * members + nodes).
+pub fn decide_ballot_each<W: AsRef<[u64]>, const B: usize>(
+    rule: &Rule<W>,
+    ballot: &Ballot<B>,
+    mut each: impl FnMut(usize, AtomTally),
+) -> Result<bool, Error> {
+    rule.check_members(ballot.yes())?;
+    rule.check_members(ballot.no())?;
+    rule.check_members(ballot.abstain())?;
+    let mut met = 0u64;
+    for (k, atom) in rule.atoms().iter().enumerate() {
+        let a = usize::from(atom.attribute);
+        let (y, n, ab) = (
+            rule.sum_over(a, ballot.yes()),
+            rule.sum_over(a, ballot.no()),
+            rule.sum_over(a, ballot.abstain()),
+        );
+        let tally = four_state_tally(rule, k, atom, y, n, ab);
+        met |= u64::from(tally.met) << k;
+        each(k, tally);
+    }
+    Ok(rule.eval(|i| (met >> i) & 1 == 1))
 }
 
 /// Decides a four-state ballot: yes, no, abstain, absent.
@@ -125,18 +199,7 @@ pub fn decide_ballot<W: AsRef<[u64]>, const B: usize>(
         let a = usize::from(atom.attribute);
         // a < attributes <= MAX_ATTRIBUTES (Rule::new), so every get finds it.
         let at = |sums: &[u64; MAX_ATTRIBUTES]| sums.get(a).copied().unwrap_or(0);
-        let (y, n, ab) = (at(&yes), at(&no), at(&abstain));
-        let met = match rule.linear(i) {
-            Some(l) => l.holds(y, n, ab),
-            None => y >= atom.quota,
-        };
-        let _ = tallies.push(AtomTally {
-            sum: y,
-            quota: atom.quota,
-            met,
-            no: n,
-            abstain: ab,
-        });
+        let _ = tallies.push(four_state_tally(rule, i, atom, at(&yes), at(&no), at(&abstain)));
     }
     let passed = rule.eval(|i| tallies.get(i).is_some_and(|t| t.met));
     Ok(Decision { passed, tallies })
@@ -187,6 +250,7 @@ pub fn critical<W: AsRef<[u64]>, const B: usize>(
 mod tests {
     use super::*;
     use crate::fixtures::four_state_rules;
+    use crate::model::ballot::Vote;
     use proptest::prelude::*;
 
     proptest! {
@@ -204,6 +268,31 @@ mod tests {
                 prop_assert_eq!(a.met, b.met);
                 prop_assert_eq!(a.sides(&rule, i), b.sides(&rule, i));
             }
+        }
+
+        /// The small-stack forms give the same outcome and tallies as
+        /// `decide` and `decide_ballot`, atom by atom, on any four-state ballot.
+        #[test]
+        fn small_stack_forms_agree(rule in four_state_rules(), votes in proptest::collection::vec(0u8..4, 7)) {
+            let n = rule.members();
+            let mut ballot = Ballot::<1>::EMPTY;
+            for (i, &v) in votes.iter().enumerate().take(n) {
+                let vote = [Vote::Absent, Vote::Yes, Vote::No, Vote::Abstain][usize::from(v)];
+                ballot.set(i, vote).unwrap();
+            }
+            let mut seen = heapless::Vec::<AtomTally, MAX_ATOMS>::new();
+            let passed = decide_ballot_each(&rule, &ballot, |k, t| {
+                assert_eq!(k, seen.len());
+                seen.push(t).unwrap();
+            }).unwrap();
+            let whole = decide_ballot(&rule, &ballot).unwrap();
+            prop_assert_eq!(passed, whole.passed);
+            prop_assert_eq!(&seen, &whole.tallies);
+            seen.clear();
+            let passed = decide_each(&rule, ballot.yes(), |_, t| seen.push(t).unwrap()).unwrap();
+            let whole = decide(&rule, ballot.yes()).unwrap();
+            prop_assert_eq!(passed, whole.passed);
+            prop_assert_eq!(&seen, &whole.tallies);
         }
     }
 }

@@ -295,30 +295,42 @@ impl<W: AsRef<[u64]>> Rule<W> {
         Ok(self.passes_with_sums(sums.get(..self.attributes).unwrap_or(&[])))
     }
 
+    /// Checks that `set` is a set of this rule's members and that its
+    /// width holds them all: `Error::BallotMismatch` otherwise.
+    pub fn check_members<const B: usize>(&self, set: &Coalition<B>) -> Result<(), Error> {
+        if self.members > Coalition::<B>::CAPACITY || set.has_member_at_or_beyond(self.members) {
+            return Err(Error::BallotMismatch {
+                members: self.members,
+                capacity: Coalition::<B>::CAPACITY.min(self.members),
+            });
+        }
+        Ok(())
+    }
+
+    /// The sum of attribute `a` over the members of `set` (0 for an
+    /// attribute or member the rule does not have). Cannot overflow: every
+    /// row's total was checked when the rule was built.
+    pub fn sum_over<const B: usize>(&self, a: usize, set: &Coalition<B>) -> u64 {
+        let row = self.attribute_weights(a);
+        set.iter()
+            .map(|i| row.get(i).copied().unwrap_or(0))
+            .fold(0u64, u64::wrapping_add)
+    }
+
     /// Writes the yes-sum of every used attribute into `sums` (unused: 0).
     pub fn yes_sums<const B: usize>(
         &self,
         yes: &Coalition<B>,
         sums: &mut [u64; MAX_ATTRIBUTES],
     ) -> Result<(), Error> {
-        if self.members > Coalition::<B>::CAPACITY || yes.has_member_at_or_beyond(self.members) {
-            return Err(Error::BallotMismatch {
-                members: self.members,
-                capacity: Coalition::<B>::CAPACITY.min(self.members),
-            });
-        }
+        self.check_members(yes)?;
         let used = self.used_attributes();
         for (a, slot) in sums.iter_mut().enumerate().take(self.attributes) {
             *slot = 0;
             if used & (1 << a) == 0 {
                 continue;
             }
-            let row = self.attribute_weights(a);
-            // No overflow: the whole row's sum was checked at construction.
-            *slot = yes
-                .iter()
-                .map(|i| row.get(i).copied().unwrap_or(0))
-                .fold(0u64, u64::wrapping_add);
+            *slot = self.sum_over(a, yes);
         }
         Ok(())
     }

@@ -141,8 +141,26 @@ fn seeds(fuzz_dir: &std::path::Path) {
         };
         if let Some(r) = file.rules.first() {
             images.push((name.to_string(), image::encode(&r.rule)));
+            // The same rule with its names in the roster section (format version 2).
+            let names: Vec<&str> = file.members.iter().map(|m| m.name.as_str()).collect();
+            let roster = image::Roster {
+                rule: &r.name,
+                members: &names,
+            };
+            if let Ok(named) = image::encode_named(&r.rule, &roster) {
+                images.push((format!("{name}-named"), named));
+            }
         }
     }
+    // A version-1 image (no roster section), which readers still accept:
+    // [12; 4,4,4,2,2,1] as docs/image-format.md gives it.
+    images.push((
+        "weighted-v1".to_string(),
+        vec![
+            0x89, 0x43, 0x4C, 0x52, 1, 0, 1, 0, 45, 0, 0, 0, 6, 0, 0, 0, 1, 0, 1, 0, 1, 4, 4, 4, 2, 2, 1, 0, 0, 0,
+            12, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0xA0, 0x48, 0xA3, 0x7C,
+        ],
+    ));
     let four = Rule::with_conditions(
         5,
         vec![3u64, 1, 1, 1, 1, 1, 1, 1, 1, 1],

@@ -7,9 +7,10 @@
 //! cannot overflow or truncate.
 
 use super::crc::crc32;
+use super::roster::{roster_digest, Roster};
 use super::{
     condition_len, ImageError, CHECKSUM_LEN, FORMAT_VERSION, HEADER_LEN, KIND_ALL, KIND_ANY, KIND_ATOM,
-    KIND_LINEAR, KIND_THRESHOLD, MAGIC, NODE_LEN,
+    KIND_LINEAR, KIND_THRESHOLD, MAGIC, MAX_NAME_LEN, NODE_LEN, ROSTER_LEN,
 };
 use crate::model::atom::Condition;
 use crate::model::rule::{Node, Rule};
@@ -30,8 +31,24 @@ fn width_of<W: AsRef<[u64]>>(rule: &Rule<W>, attribute: usize) -> usize {
     }
 }
 
-/// Length in bytes of `rule`'s image.
+/// Bytes of the names section for `names`: a length byte and the UTF-8 of
+/// each name (0 without names).
+fn names_len(names: Option<&Roster<'_>>) -> usize {
+    names.map_or(0, |r| {
+        core::iter::once(r.rule)
+            .chain(r.members.iter().copied())
+            .map(|n| n.len().saturating_add(1))
+            .fold(0, usize::saturating_add)
+    })
+}
+
+/// Length in bytes of `rule`'s image without names.
 pub fn encoded_len<W: AsRef<[u64]>>(rule: &Rule<W>) -> usize {
+    encoded_len_named(rule, None)
+}
+
+/// Length in bytes of `rule`'s image with these names.
+pub fn encoded_len_named<W: AsRef<[u64]>>(rule: &Rule<W>, names: Option<&Roster<'_>>) -> usize {
     // A valid rule's image is at most MAX_IMAGE_LEN (< 2^32) bytes: no saturation.
     let rows: usize = (0..rule.attributes())
         .map(|a| rule.members().saturating_mul(width_of(rule, a)).saturating_add(1))
@@ -44,6 +61,8 @@ pub fn encoded_len<W: AsRef<[u64]>>(rule: &Rule<W>) -> usize {
         .saturating_add(rows)
         .saturating_add(conditions)
         .saturating_add(rule.formula().len().saturating_mul(NODE_LEN))
+        .saturating_add(ROSTER_LEN)
+        .saturating_add(names_len(names))
         .saturating_add(CHECKSUM_LEN)
 }
 
@@ -52,7 +71,30 @@ pub fn encoded_len<W: AsRef<[u64]>>(rule: &Rule<W>) -> usize {
 /// Each attribute's weights are stored at the smallest width (1, 2, 4 or 8
 /// bytes) that holds its largest weight.
 pub fn encode_into<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut [u8]) -> Result<usize, ImageError> {
-    let len = encoded_len(rule);
+    encode_named_into(rule, None, out)
+}
+
+/// [`encode_into`] with the rule's and the members' names in the roster
+/// section (one name per member, each at most [`super::MAX_NAME_LEN`]
+/// bytes; `BadNames` otherwise). The roster digest covers the member names
+/// (empty without names) and the weights.
+pub fn encode_named_into<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    names: Option<&Roster<'_>>,
+    out: &mut [u8],
+) -> Result<usize, ImageError> {
+    if let Some(r) = names {
+        if r.members.len() != rule.members() {
+            return Err(ImageError::BadNames {
+                member: r.members.len().min(rule.members()).saturating_add(1),
+            });
+        }
+        let all = core::iter::once(r.rule).chain(r.members.iter().copied());
+        if let Some(entry) = all.clone().position(|n| n.len() > MAX_NAME_LEN) {
+            return Err(ImageError::BadNames { member: entry });
+        }
+    }
+    let len = encoded_len_named(rule, names);
     let given = out.len();
     let out = out
         .get_mut(..len)
@@ -102,19 +144,39 @@ pub fn encode_into<W: AsRef<[u64]>>(rule: &Rule<W>, out: &mut [u8]) -> Result<us
         w.put(&[kind]);
         w.put(&arg.to_le_bytes());
     }
+    w.put(&roster_digest(rule, names.map(|r| r.members)));
+    w.put(&(names_len(names) as u32).to_le_bytes());
+    if let Some(r) = names {
+        for name in core::iter::once(r.rule).chain(r.members.iter().copied()) {
+            // At most MAX_NAME_LEN (255) bytes, checked above.
+            w.put(&[name.len() as u8]);
+            w.put(name.as_bytes());
+        }
+    }
     let crc = crc32(w.out.get(..w.at).unwrap_or(&[]));
     w.put(&crc.to_le_bytes());
     debug_assert_eq!(w.at, len);
     Ok(len)
 }
 
-/// `rule`'s image in a new vector.
+/// `rule`'s image (without names) in a new vector.
 #[cfg(feature = "alloc")]
 pub fn encode<W: AsRef<[u64]>>(rule: &Rule<W>) -> alloc::vec::Vec<u8> {
     let mut out = alloc::vec![0u8; encoded_len(rule)];
     // The buffer has exactly encoded_len bytes, so this cannot fail.
     let _ = encode_into(rule, &mut out);
     out
+}
+
+/// `rule`'s image with names in a new vector.
+#[cfg(feature = "alloc")]
+pub fn encode_named<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    names: &Roster<'_>,
+) -> Result<alloc::vec::Vec<u8>, ImageError> {
+    let mut out = alloc::vec![0u8; encoded_len_named(rule, Some(names))];
+    encode_named_into(rule, Some(names), &mut out)?;
+    Ok(out)
 }
 
 /// Appends bytes to a buffer whose length was computed beforehand.

@@ -8,6 +8,7 @@ use core::fmt;
 
 use super::crc::crc32;
 use super::load::{check, read_header, u32_at};
+use super::roster::DIGEST_LEN;
 use super::{ImageError, CHECKSUM_LEN, HEADER_LEN};
 
 /// What an image holds and whether it is intact, as far as its header can
@@ -34,6 +35,10 @@ pub struct ImageInfo {
     pub computed_checksum: Option<u32>,
     /// `Ok` when the image passes every check [`load`](super::load) makes.
     pub verdict: Result<(), ImageError>,
+    /// The roster digest of an intact version-2 image.
+    pub roster_digest: Option<[u8; DIGEST_LEN]>,
+    /// Whether an intact image stores the rule's and the members' names.
+    pub named: bool,
 }
 
 impl ImageInfo {
@@ -60,6 +65,25 @@ impl fmt::Display for ImageInfo {
             (Some(s), Some(c)) => writeln!(f, "checksum {s:#010x} (CRC-32) stored, {c:#010x} computed")?,
             _ => writeln!(f, "checksum not present")?,
         }
+        match (self.roster_digest, self.named) {
+            (Some(d), named) => {
+                write!(f, "roster digest (SHA-256) ")?;
+                for b in d {
+                    write!(f, "{b:02x}")?;
+                }
+                writeln!(
+                    f,
+                    "{}",
+                    if named {
+                        ", names stored"
+                    } else {
+                        ", no names stored"
+                    }
+                )?;
+            }
+            (None, _) if self.verdict.is_ok() => writeln!(f, "no roster section (format version 1)")?,
+            (None, _) => {}
+        }
         match self.verdict {
             Ok(()) => write!(f, "intact: every check passed"),
             Err(e) => write!(f, "damaged: {e}"),
@@ -79,6 +103,7 @@ pub fn inspect(bytes: &[u8]) -> Result<ImageInfo, ImageError> {
         Some(covered) => (Some(u32_at(bytes, covered.len())), Some(crc32(covered))),
         None => (None, None),
     };
+    let checked = check(bytes);
     Ok(ImageInfo {
         version: h.version,
         declared_len: h.declared_len,
@@ -89,6 +114,8 @@ pub fn inspect(bytes: &[u8]) -> Result<ImageInfo, ImageError> {
         nodes: h.nodes,
         stored_checksum: stored,
         computed_checksum: computed,
-        verdict: check(bytes).map(|_| ()),
+        verdict: checked.as_ref().map(|_| ()).map_err(|e| *e),
+        roster_digest: checked.as_ref().ok().and_then(|c| c.digest),
+        named: checked.as_ref().is_ok_and(|c| c.names.is_some()),
     })
 }

@@ -9,9 +9,10 @@
 //! against the limits, so they cannot overflow; weight sums are checked.
 
 use super::crc::crc32;
+use super::roster::{digest_of, split_names, DIGEST_LEN};
 use super::{
     condition_len, ImageError, CHECKSUM_LEN, FORMAT_VERSION, HEADER_LEN, KIND_ALL, KIND_ANY, KIND_ATOM,
-    KIND_LINEAR, KIND_THRESHOLD, MAGIC, NODE_LEN, THRESHOLD_LEN,
+    KIND_LINEAR, KIND_THRESHOLD, MAGIC, NODE_LEN, OLDEST_VERSION, ROSTER_LEN, THRESHOLD_LEN,
 };
 use crate::model::atom::{Atom, Condition, Linear};
 use crate::model::error::Error;
@@ -75,7 +76,7 @@ pub(super) fn read_header(bytes: &[u8]) -> Result<Header, ImageError> {
         });
     }
     let version = u16_at(bytes, 4);
-    if version != FORMAT_VERSION {
+    if !(OLDEST_VERSION..=FORMAT_VERSION).contains(&version) {
         return Err(ImageError::UnsupportedVersion {
             found: version,
             supported: FORMAT_VERSION,
@@ -159,12 +160,16 @@ fn check_capacity(h: &Header) -> Result<(), Error> {
 /// conditions and formula.
 pub(super) struct Checked<'a> {
     bytes: &'a [u8],
-    members: usize,
+    pub members: usize,
     attributes: usize,
     /// Byte offset of each attribute's weight row and its width.
     rows: [(usize, usize); MAX_ATTRIBUTES],
     conditions: heapless::Vec<Condition, MAX_ATOMS>,
     formula: heapless::Vec<Node, MAX_NODES>,
+    /// The roster digest (version 2 and later).
+    pub digest: Option<[u8; DIGEST_LEN]>,
+    /// The names section, when the image stores names.
+    pub names: Option<&'a [u8]>,
 }
 
 /// The condition stored at `at`, or its unknown kind.
@@ -244,15 +249,43 @@ pub(super) fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
         let _ = conditions.push(c);
     }
     let nodes_at = at;
-    let expected = nodes_at
-        .saturating_add(h.nodes.saturating_mul(NODE_LEN))
-        .saturating_add(CHECKSUM_LEN);
+    let nodes_end = nodes_at.saturating_add(h.nodes.saturating_mul(NODE_LEN));
+    // Version 2 adds the roster section: digest, names length, names.
+    let (roster_at, names_len) = if h.version >= 2 {
+        let names_len_at = nodes_end.saturating_add(DIGEST_LEN);
+        if names_len_at.saturating_add(4) > body_end {
+            return Err(ImageError::LayoutMismatch {
+                declared: h.declared_len,
+                expected: nodes_end.saturating_add(ROSTER_LEN).saturating_add(CHECKSUM_LEN),
+            });
+        }
+        (Some(nodes_end), u32_at(bytes, names_len_at) as usize)
+    } else {
+        (None, 0)
+    };
+    let roster_len = if roster_at.is_some() {
+        ROSTER_LEN.saturating_add(names_len)
+    } else {
+        0
+    };
+    let expected = nodes_end.saturating_add(roster_len).saturating_add(CHECKSUM_LEN);
     if expected != h.declared_len {
         return Err(ImageError::LayoutMismatch {
             declared: h.declared_len,
             expected,
         });
     }
+    let digest = roster_at.map(|r| {
+        let mut d = [0u8; DIGEST_LEN];
+        if let Some(src) = bytes.get(r..r.saturating_add(DIGEST_LEN)) {
+            d.copy_from_slice(src);
+        }
+        d
+    });
+    let names_at = nodes_end.saturating_add(ROSTER_LEN);
+    let names = roster_at
+        .filter(|_| names_len > 0)
+        .and_then(|_| bytes.get(names_at..names_at.saturating_add(names_len)));
 
     let mut checked = Checked {
         bytes,
@@ -261,6 +294,8 @@ pub(super) fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
         rows,
         conditions,
         formula: heapless::Vec::new(),
+        digest,
+        names,
     };
     for a in 0..attributes {
         (0..n)
@@ -287,6 +322,19 @@ pub(super) fn check(bytes: &[u8]) -> Result<Checked<'_>, ImageError> {
     let zeros = [0u64; MAX_ATTRIBUTES];
     let stand_in = zeros.get(..attributes).unwrap_or(&[]);
     Rule::with_conditions(1, stand_in, &checked.conditions, &checked.formula)?;
+    // Names, when stored, must be one per member and agree with the digest.
+    if let (Some(section), Some(stored)) = (checked.names, checked.digest) {
+        let (_, mut names) = split_names(section, n)?;
+        let computed = digest_of(
+            n,
+            attributes,
+            |_| names.next().map_or(&[][..], str::as_bytes),
+            |a, i| checked.weight(a, i),
+        );
+        if computed != stored {
+            return Err(ImageError::RosterMismatch);
+        }
+    }
     Ok(checked)
 }
 
@@ -317,6 +365,16 @@ pub fn load_with<'w, W: AsRef<[u64]>>(
     weights: &'w mut [u64],
     wrap: impl FnOnce(&'w [u64]) -> W,
 ) -> Result<Rule<W>, ImageError> {
+    Ok(load_with_roster(bytes, weights, wrap)?.0)
+}
+
+/// [`load_with`], also returning the image's roster digest (`None` for a
+/// version-1 image).
+pub fn load_with_roster<'w, W: AsRef<[u64]>>(
+    bytes: &[u8],
+    weights: &'w mut [u64],
+    wrap: impl FnOnce(&'w [u64]) -> W,
+) -> Result<(Rule<W>, Option<[u8; DIGEST_LEN]>), ImageError> {
     let c = check(bytes)?;
     let needed = c.members.saturating_mul(c.attributes);
     let given = weights.len();
@@ -330,10 +388,6 @@ pub fn load_with<'w, W: AsRef<[u64]>>(
         }
     }
     let table: &'w [u64] = table;
-    Ok(Rule::with_conditions(
-        c.members,
-        wrap(table),
-        &c.conditions,
-        &c.formula,
-    )?)
+    let rule = Rule::with_conditions(c.members, wrap(table), &c.conditions, &c.formula)?;
+    Ok((rule, c.digest))
 }

@@ -47,22 +47,31 @@ mod crc;
 mod encode;
 mod inspect;
 mod load;
+mod roster;
 #[cfg(test)]
 mod tests;
 
 pub use crc::crc32;
 #[cfg(feature = "alloc")]
-pub use encode::encode;
-pub use encode::{encode_into, encoded_len};
+pub use encode::{encode, encode_named};
+pub use encode::{encode_into, encode_named_into, encoded_len, encoded_len_named};
 pub use inspect::{inspect, ImageInfo};
-pub use load::{load, load_with, weights_needed};
+pub use load::{load, load_with, load_with_roster, weights_needed};
+pub use roster::{roster, roster_digest, Names, Roster, RosterInfo, DIGEST_LEN};
 
 /// The first four bytes of every image. The high first byte catches
 /// transfers that strip the eighth bit; the rest reads "CLR".
 pub const MAGIC: [u8; 4] = [0x89, b'C', b'L', b'R'];
 
-/// The format version this build writes and reads.
-pub const FORMAT_VERSION: u16 = 1;
+/// The format version this build writes. It also reads version 1
+/// ([`OLDEST_VERSION`]), which has no roster section.
+pub const FORMAT_VERSION: u16 = 2;
+
+/// The oldest format version this build reads.
+pub const OLDEST_VERSION: u16 = 1;
+
+/// Longest member or rule name an image stores, in bytes of UTF-8.
+pub const MAX_NAME_LEN: usize = 255;
 
 /// Bytes in the fixed header.
 pub const HEADER_LEN: usize = 20;
@@ -89,12 +98,18 @@ const KIND_ATOM: u8 = 0;
 const KIND_ALL: u8 = 1;
 const KIND_ANY: u8 = 2;
 
+/// Bytes of the roster section besides the names: the digest and the
+/// names' length (u32).
+pub const ROSTER_LEN: usize = roster::DIGEST_LEN + 4;
+
 /// The longest image any build can write (65,535 members, every limit
-/// reached, 8-byte weights).
+/// reached, 8-byte weights, every name of the longest length).
 const MAX_IMAGE_LEN: usize = HEADER_LEN
     + MAX_ATTRIBUTES * (1 + 65_535 * 8)
     + MAX_ATOMS * LINEAR_LEN
     + MAX_NODES * NODE_LEN
+    + ROSTER_LEN
+    + 65_536 * (1 + MAX_NAME_LEN)
     + CHECKSUM_LEN;
 // The header stores the length as a u32.
 const _: () = assert!(MAX_IMAGE_LEN <= u32::MAX as usize);
@@ -129,6 +144,12 @@ pub enum ImageError {
     Rule(Error),
     /// A caller buffer (weights for [`load`], bytes for [`encode_into`]) is too small.
     BufferTooSmall { needed: usize, given: usize },
+    /// The names of a roster section do not fill it exactly, are not
+    /// UTF-8, are longer than [`MAX_NAME_LEN`] bytes, or (when writing) are
+    /// not one per member.
+    BadNames { member: usize },
+    /// The roster digest does not match the names and weights the image holds.
+    RosterMismatch,
 }
 
 impl fmt::Display for ImageError {
@@ -142,8 +163,8 @@ impl fmt::Display for ImageError {
             ),
             UnsupportedVersion { found, supported } => write!(
                 f,
-                "image format version {found} is not supported (this build reads version {supported}); \
-                 compile the rule again with this version"
+                "image format version {found} is not supported (this build reads versions {OLDEST_VERSION} \
+                 to {supported}); compile the rule again with this version"
             ),
             TrailingBytes { declared, len } => write!(
                 f,
@@ -173,6 +194,15 @@ impl fmt::Display for ImageError {
             BufferTooSmall { needed, given } => {
                 write!(f, "buffer of {given} elements is too small, {needed} needed")
             }
+            BadNames { member } => write!(
+                f,
+                "the roster's names are malformed at entry {member} (not UTF-8, longer than \
+                 {MAX_NAME_LEN} bytes, not one per member, or not filling the section)"
+            ),
+            RosterMismatch => write!(
+                f,
+                "the roster digest does not match the image's names and weights"
+            ),
         }
     }
 }

@@ -26,6 +26,30 @@ const EEC_IMAGE: [u8; 45] = [
     0xa0, 0x48, 0xa3, 0x7c, // CRC-32
 ];
 
+/// The same rule in format version 2, as this build writes it (without
+/// names): the version-1 layout with the version changed to 2 and the
+/// length to 81, then the roster digest and a names length of 0. The
+/// digest was computed independently with Python's `hashlib.sha256` over
+/// the data docs/image-format.md describes, and the CRC with `zlib.crc32`.
+const EEC_IMAGE_V2: [u8; 81] = [
+    0x89, b'C', b'L', b'R', // magic
+    2, 0, // version
+    1, 0, // attributes
+    81, 0, 0, 0, // length
+    6, 0, 0, 0, // members
+    1, 0, // atoms
+    1, 0, // nodes
+    1, // width of attribute 0
+    4, 4, 4, 2, 2, 1, // weights
+    0, 0, 0, 12, 0, 0, 0, 0, 0, 0, 0, // condition 0: threshold, attribute 0, quota 12
+    0, 0, 0, // node 0: atom 0
+    0x83, 0xcf, 0x7c, 0xc4, 0xcf, 0xab, 0x02, 0x8f, 0xb1, 0x0c, 0xa0, 0x4d, 0x3f, 0x11, 0x45, 0x4a, //
+    0xc9, 0x8e, 0x6a, 0x91, 0x87, 0xd0, 0xd5, 0x59, 0xd5, 0x67, 0xc6, 0x5c, 0x3e, 0x31, 0xbd,
+    0x17, // digest
+    0, 0, 0, 0, // no names
+    0x99, 0x28, 0xb9, 0x19, // CRC-32
+];
+
 fn eec() -> Rule<[u64; 6]> {
     Rule::weighted(12, [4u64, 4, 4, 2, 2, 1]).unwrap()
 }
@@ -64,14 +88,85 @@ fn crc32_check_value() {
 
 #[test]
 fn encodes_the_documented_bytes() {
-    assert_eq!(encoded(&eec()), EEC_IMAGE);
-    assert_eq!(encoded_len(&eec()), EEC_IMAGE.len());
+    assert_eq!(encoded(&eec()), EEC_IMAGE_V2);
+    assert_eq!(encoded_len(&eec()), EEC_IMAGE_V2.len());
 }
 
 #[cfg(feature = "alloc")]
 #[test]
 fn encode_matches_encode_into() {
-    assert_eq!(encode(&eec()), EEC_IMAGE);
+    assert_eq!(encode(&eec()), EEC_IMAGE_V2);
+}
+
+/// Version-1 images (no roster section) still load, to the same rule as
+/// their version-2 form, with no digest.
+#[test]
+fn version_1_images_still_load() {
+    let (mut w1, mut w2) = ([0u64; 6], [0u64; 6]);
+    let (old, none) = load_with_roster(&EEC_IMAGE, &mut w1, |t| t).unwrap();
+    let (new, digest) = load_with_roster(&EEC_IMAGE_V2, &mut w2, |t| t).unwrap();
+    assert_eq!(old, new);
+    assert_eq!(none, None);
+    assert_eq!(digest.as_ref().map(|d| &d[..]), EEC_IMAGE_V2.get(41..73));
+    assert!(roster(&EEC_IMAGE).unwrap().is_none());
+}
+
+/// Names round-trip; the digest covers names and weights, so changing one
+/// weight, one name or the members' order changes it; a stored digest that
+/// does not match the stored names is refused.
+#[test]
+fn rosters_name_members_and_pin_weights() {
+    let names = ["ash", "birch", "cedar", "dogwood", "elm", "fir"];
+    let named = Roster {
+        rule: "motion",
+        members: &names,
+    };
+    let mut image = vec![0u8; encoded_len_named(&eec(), Some(&named))];
+    encode_named_into(&eec(), Some(&named), &mut image).unwrap();
+    let info = roster(&image).unwrap().unwrap();
+    assert_eq!(info.rule, Some("motion"));
+    assert!(info.members.clone().eq(names.iter().copied()));
+    assert_eq!(info.digest, roster_digest(&eec(), Some(&names)));
+    assert!(inspect(&image).unwrap().named);
+
+    let base = roster_digest(&eec(), Some(&names));
+    let heavier = Rule::weighted(12, [4u64, 4, 4, 2, 3, 1]).unwrap();
+    assert_ne!(roster_digest(&heavier, Some(&names)), base);
+    let renamed = ["ash", "birch", "cedar", "dogwood", "elm", "pine"];
+    assert_ne!(roster_digest(&eec(), Some(&renamed)), base);
+    let moved = ["birch", "ash", "cedar", "dogwood", "elm", "fir"];
+    assert_ne!(roster_digest(&eec(), Some(&moved)), base);
+    assert_ne!(roster_digest(&eec(), None), base);
+
+    // The digest of another roster, resealed: the names no longer match.
+    let at = image.len() - CHECKSUM_LEN;
+    let digest_at = 41;
+    image[digest_at] ^= 1;
+    reseal(&mut image);
+    assert_eq!(load_err(&image), ImageError::RosterMismatch);
+    image[digest_at] ^= 1;
+    // A name that is not UTF-8.
+    image[at - 1] = 0xFF;
+    reseal(&mut image);
+    assert_eq!(load_err(&image), ImageError::BadNames { member: 6 });
+    // Wrong number of names, and a name too long, when writing.
+    let short = Roster {
+        rule: "motion",
+        members: &names[..5],
+    };
+    assert!(matches!(
+        encode_named_into(&eec(), Some(&short), &mut [0u8; 512]),
+        Err(ImageError::BadNames { .. })
+    ));
+    let long = "x".repeat(MAX_NAME_LEN + 1);
+    let too_long = Roster {
+        rule: &long,
+        members: &names,
+    };
+    assert_eq!(
+        encode_named_into(&eec(), Some(&too_long), &mut [0u8; 1024]),
+        Err(ImageError::BadNames { member: 0 })
+    );
 }
 
 #[test]
@@ -93,12 +188,12 @@ fn short_buffers_are_errors() {
         ImageError::BufferTooSmall { needed: 6, given: 5 }
     );
     assert_eq!(w, [7; 5], "nothing written on failure");
-    let mut out = [0u8; 44];
+    let mut out = [0u8; 80];
     assert_eq!(
         encode_into(&eec(), &mut out),
         Err(ImageError::BufferTooSmall {
-            needed: 45,
-            given: 44
+            needed: 81,
+            given: 80
         })
     );
 }
@@ -155,10 +250,10 @@ fn each_damage_has_its_own_error() {
         }
     );
     assert_eq!(
-        with(4, &[2, 0]),
+        with(4, &[3, 0]),
         ImageError::UnsupportedVersion {
-            found: 2,
-            supported: 1
+            found: 3,
+            supported: 2
         }
     );
     assert_eq!(with(12, &[0; 4]), ImageError::Rule(Error::NoMembers));
@@ -261,8 +356,9 @@ fn weight_sums_and_depth_are_checked() {
     let mut image = encoded(&deep);
     let mut w = [0u64; 1];
     assert!(load(&image, &mut w).is_ok());
-    let crc_at = image.len() - CHECKSUM_LEN;
-    image.splice(crc_at..crc_at, [KIND_ALL, 1, 0]);
+    // One more node after the formula, before the roster section (no names).
+    let roster_at = image.len() - CHECKSUM_LEN - ROSTER_LEN;
+    image.splice(roster_at..roster_at, [KIND_ALL, 1, 0]);
     let nodes = (f.len() as u16 + 1).to_le_bytes();
     image[18..20].copy_from_slice(&nodes);
     let len = (image.len() as u32).to_le_bytes();
@@ -290,7 +386,7 @@ fn linear_conditions_round_trip() {
     let image = encoded(&rule);
     assert_eq!(
         image.len(),
-        HEADER_LEN + 1 + 3 + LINEAR_LEN + NODE_LEN + CHECKSUM_LEN
+        HEADER_LEN + 1 + 3 + LINEAR_LEN + NODE_LEN + ROSTER_LEN + CHECKSUM_LEN
     );
     let mut w = [0u64; 3];
     let loaded = load(&image, &mut w).unwrap();
@@ -323,6 +419,15 @@ fn inspect_describes_contents_and_integrity() {
         "clout rule image, format version 1, 45 bytes declared, 45 given\n\
          6 members, 1 weight attributes, 1 conditions, 1 formula nodes\n\
          checksum 0x7ca348a0 (CRC-32) matches\n\
+         no roster section (format version 1)\n\
+         intact: every check passed"
+    );
+    assert_eq!(
+        std::format!("{}", inspect(&EEC_IMAGE_V2).unwrap()),
+        "clout rule image, format version 2, 81 bytes declared, 81 given\n\
+         6 members, 1 weight attributes, 1 conditions, 1 formula nodes\n\
+         checksum 0x19b92899 (CRC-32) matches\n\
+         roster digest (SHA-256) 83cf7cc4cfab028fb10ca04d3f11454ac98e6a9187d0d559d567c65c3e31bd17, no names stored\n\
          intact: every check passed"
     );
     let mut damaged = EEC_IMAGE;
