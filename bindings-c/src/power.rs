@@ -63,7 +63,11 @@ pub(crate) fn count(
 
 /// Without the heap there is no scratch to count in.
 #[cfg(not(feature = "alloc"))]
-fn count(_: &LoadedRule, _: u128, _: u64) -> Result<(RuleCounts<u128>, [MemberCounts<u128>; 0]), clout_result> {
+fn count(
+    _: &LoadedRule,
+    _: u128,
+    _: u64,
+) -> Result<(RuleCounts<u128>, [MemberCounts<u128>; 0]), clout_result> {
     Err(clout_result::NotInBuild)
 }
 
