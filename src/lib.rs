@@ -23,6 +23,10 @@ struct ReadmeDoctests;
 pub use clout_core as core;
 pub use clout_core::*;
 pub use clout_dsl as language;
+/// Escaping input-derived text for terminals, XML/SVG/HTML, CSV and JSON
+/// (one module for every renderer; it lives in the rule language so that
+/// diagnostics use it too).
+pub use clout_dsl::escape;
 pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 
 pub mod chart;

@@ -9,9 +9,11 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 use clout::drafting::{self as answers, FitOptions, BUDGET};
+use clout::escape;
+use clout_dsl::data::MAX_TABLE_LEN;
 
 use crate::drafting::{self, Format};
-use crate::input::Input;
+use crate::input::{read_bounded, Input};
 use crate::progress::Progress;
 use crate::report::{json, CAUTION, MODEL};
 use crate::text::{Align, Table};
@@ -174,16 +176,29 @@ fn targets(args: &FitArgs) -> Result<Targets, Failure> {
         .is_some_and(|p| p.extension().is_some_and(|e| e.eq_ignore_ascii_case("csv")));
     if is_csv || args.targets.as_deref() == Some(Path::new("-")) {
         let path = args.targets.as_deref().unwrap_or(Path::new("-"));
-        let (name, text) = if path == Path::new("-") {
-            let mut s = String::new();
-            std::io::Read::read_to_string(&mut std::io::stdin(), &mut s)
+        // Bounded like every table (8 MiB): `/dev/zero` is refused, not read whole.
+        let (name, bytes) = if path == Path::new("-") {
+            let bytes = read_bounded(std::io::stdin(), MAX_TABLE_LEN)
                 .map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
-            ("<stdin>".to_string(), s)
+            ("<stdin>".to_string(), bytes)
         } else {
-            let s = std::fs::read_to_string(path)
-                .map_err(|e| Failure::input(format!("cannot read `{}`: {e}", path.display())))?;
-            (path.display().to_string(), s)
+            let name = escape::terminal(&path.to_string_lossy()).into_owned();
+            let bytes = std::fs::File::open(path)
+                .and_then(|f| read_bounded(f, MAX_TABLE_LEN))
+                .map_err(|e| Failure::input(format!("cannot read `{name}`: {e}")))?;
+            (name, bytes)
         };
+        if bytes.len() > MAX_TABLE_LEN {
+            return Err(Failure::input(format!(
+                "`{name}` is longer than the limit of {MAX_TABLE_LEN} bytes for a table; it was not read further"
+            )));
+        }
+        let text = String::from_utf8(bytes).map_err(|e| {
+            Failure::input(format!(
+                "`{name}` is not UTF-8 text (byte {})",
+                e.utf8_error().valid_up_to()
+            ))
+        })?;
         return parse_csv(&name, &text);
     }
     if args.targets.is_none() && args.game.is_none() {

@@ -8,9 +8,9 @@
 
 use std::path::{Path, PathBuf};
 
-use clout::image;
+use clout::{escape, image};
 
-use crate::input::Input;
+use crate::input::{read_bounded, Input};
 use crate::{CompileArgs, Failure, InspectArgs, Outcome};
 
 pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
@@ -34,9 +34,9 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
         "wrote {} ({} bytes): rule `{}`, {} members, {} conditions, CRC-32 checked on load\n\
          rule memory: {words} words of 8 bytes (clout_rule_words)\n\
          roster digest (SHA-256 of the member names and weights): {}\n",
-        out.display(),
+        escape::terminal(&out.to_string_lossy()),
         bytes.len(),
-        rule.name,
+        escape::terminal(&rule.name),
         rule.rule.members(),
         rule.rule.atoms().len(),
         hex(&digest)
@@ -173,15 +173,23 @@ fn output_path(args: &CompileArgs, file: Option<&Path>, rule: &str) -> PathBuf {
 }
 
 pub fn inspect(args: &InspectArgs) -> Result<Outcome, Failure> {
-    let bytes = std::fs::read(&args.image)
-        .map_err(|e| Failure::input(format!("cannot read {}: {e}", args.image.display())))?;
+    let shown = escape::terminal(&args.image.to_string_lossy()).into_owned();
+    let bytes = std::fs::File::open(&args.image)
+        .and_then(|f| read_bounded(f, image::MAX_IMAGE_LEN))
+        .map_err(|e| Failure::input(format!("cannot read {shown}: {e}")))?;
+    if bytes.len() > image::MAX_IMAGE_LEN {
+        return Err(Failure::input(format!(
+            "{shown}: longer than the largest possible rule image ({} bytes); it was not read further\n  \
+             = hint: this is not an image written by `clout compile`",
+            image::MAX_IMAGE_LEN
+        )));
+    }
     let info = image::inspect(&bytes).map_err(|e| {
         Failure::input(format!(
-            "{}: {e}\n  = hint: images are written by `clout compile FILE -o FILE.img`",
-            args.image.display()
+            "{shown}: {e}\n  = hint: images are written by `clout compile FILE -o FILE.img`"
         ))
     })?;
-    let mut text = format!("{}: {info}\n", args.image.display());
+    let mut text = format!("{shown}: {info}\n");
     if let Ok(Some(roster)) = image::roster(&bytes) {
         if let Some(rule) = roster.rule {
             text.push_str(&format!(

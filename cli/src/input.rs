@@ -111,14 +111,15 @@ impl Input {
         )))
     }
 
-    /// A title for headings.
+    /// The title for text and charts, safe for a terminal ([`clout::escape::terminal`]).
     pub fn title(&self) -> String {
-        match (&self.file.title, self.demo) {
+        let title = match (&self.file.title, self.demo) {
             (Some(t), true) => format!("{t} (fictional demo; `clout demo` prints its rule file)"),
             (Some(t), false) => t.clone(),
             (None, _) if self.name == "--game" => "weighted game given by --game".to_string(),
             (None, _) => self.name.clone(),
-        }
+        };
+        clout::escape::terminal(&title).into_owned()
     }
 }
 

@@ -306,7 +306,7 @@ fn write_file(path: &std::path::Path, contents: &[u8]) -> Result<(), Failure> {
     std::fs::write(path, contents).map_err(|e| {
         Failure::input(format!(
             "cannot write `{}`: {e}\n  = hint: check that its folder exists and can be written",
-            path.display()
+            clout::escape::terminal(&path.to_string_lossy())
         ))
     })
 }
@@ -364,8 +364,10 @@ fn main() -> ExitCode {
         code: f.code,
     });
     // A closed pipe (`clout report | head`) is not an error of ours.
-    let _ = std::io::stdout().lock().write_all(outcome.stdout.as_bytes());
+    let stdout = text::terminal_safe(outcome.stdout);
+    let stderr = text::terminal_safe(outcome.stderr);
+    let _ = std::io::stdout().lock().write_all(stdout.as_bytes());
     let _ = std::io::stdout().lock().flush();
-    let _ = std::io::stderr().lock().write_all(outcome.stderr.as_bytes());
+    let _ = std::io::stderr().lock().write_all(stderr.as_bytes());
     ExitCode::from(outcome.code)
 }

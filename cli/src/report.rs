@@ -11,6 +11,7 @@
 use std::fmt::Write;
 
 use clout::chart::{self, page::Block};
+use clout::escape;
 use clout::report::{self, bytes, interchangeable, reason, MemberReport, Method, Options, Report};
 use clout_dsl::exact;
 use clout_dsl::{AttributeKind, CompiledRule};
@@ -96,7 +97,9 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
 
 /// Pretty JSON with a final newline.
 pub fn json(value: &impl serde::Serialize) -> String {
-    let mut s = serde_json::to_string_pretty(value).unwrap_or_default();
+    // Hidden characters (C1 controls, bidirectional overrides) as \uXXXX,
+    // which serde_json alone writes raw.
+    let mut s = escape::json_pretty(value).unwrap_or_default();
     s.push('\n');
     s
 }
@@ -613,11 +616,7 @@ fn csv_report(report: &Report) -> String {
     out
 }
 
-/// A CSV field, quoted when it holds a comma, a quote or a line break.
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
+/// A CSV text field: escaped, formula-guarded and quoted ([`escape::csv_field`]).
+fn csv_field(s: &str) -> std::borrow::Cow<'_, str> {
+    escape::csv_field(s)
 }

@@ -220,13 +220,7 @@ fn panel(
     }
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
+use clout::escape::csv_field;
 
 fn csv(groups: &[Vec<usize>], input: &Input, answer: &Sweep) -> String {
     let mut out = String::from("quota,share,passage_probability");

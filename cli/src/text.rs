@@ -81,15 +81,17 @@ pub struct Table {
 }
 
 impl Table {
+    /// Headers and cells may hold names from the rule file: each is shown
+    /// as [`clout::escape::terminal`] shows it, and padded by that width.
     pub fn new(columns: Vec<(String, Align)>) -> Self {
         Table {
-            columns,
+            columns: columns.into_iter().map(|(h, a)| (shown(h), a)).collect(),
             rows: Vec::new(),
         }
     }
 
     pub fn push(&mut self, row: Vec<String>) {
-        self.rows.push(row);
+        self.rows.push(row.into_iter().map(shown).collect());
     }
 
     /// Each column's width: its widest cell or heading.
@@ -186,6 +188,27 @@ impl Table {
             out.push_str(&line(r.iter().map(String::as_str).collect()));
         }
         out
+    }
+}
+
+/// `cell` safe for a terminal (no copy when it already is).
+fn shown(cell: String) -> String {
+    match clout::escape::terminal(&cell) {
+        std::borrow::Cow::Borrowed(_) => cell,
+        std::borrow::Cow::Owned(s) => s,
+    }
+}
+
+/// Everything a command prints, made safe for a terminal as a last guard:
+/// every hidden character but the newline (controls, bidirectional and
+/// other format characters) as a visible escape. Renderers escape the text
+/// they take from input themselves (so that it cannot start a line either);
+/// this catches any they missed. JSON, CSV and SVG output pass unchanged,
+/// since they hold no such characters raw.
+pub fn terminal_safe(out: String) -> String {
+    match clout::escape::terminal_lines(&out) {
+        std::borrow::Cow::Borrowed(_) => out,
+        std::borrow::Cow::Owned(safe) => safe,
     }
 }
 

@@ -91,6 +91,50 @@ fn damaged_images_exit_2_with_the_reason() {
     assert!(run.stderr.contains("hint"), "{}", run.stderr);
 }
 
+/// Issue 20, finding 4: `inspect` read its file without a bound, so
+/// `/dev/zero` grew to gigabytes. It now reads at most the largest possible
+/// image plus one byte and refuses the rest with exit 2.
+#[test]
+fn inspect_refuses_endless_input() {
+    if !std::path::Path::new("/dev/zero").exists() {
+        return;
+    }
+    let started = std::time::Instant::now();
+    let run = clout_with_input(&["inspect", "/dev/zero"], "");
+    assert_eq!(run.code, 2, "{}{}", run.stdout, run.stderr);
+    assert!(
+        run.stderr.contains("longer than the largest possible rule image"),
+        "{}",
+        run.stderr
+    );
+    assert!(
+        run.stderr.contains(&clout::image::MAX_IMAGE_LEN.to_string()),
+        "{}",
+        run.stderr
+    );
+    // Reading about 40 MiB takes seconds at most; endless reading never ends.
+    assert!(started.elapsed() < std::time::Duration::from_secs(60));
+}
+
+/// At the limit the file is read and judged as an image (here: damaged);
+/// one byte past it, it is refused unread.
+#[test]
+fn inspect_reads_up_to_the_largest_image() {
+    let max = clout::image::MAX_IMAGE_LEN;
+    let at = tmp("at-limit.img");
+    std::fs::write(&at, vec![0u8; max]).expect("write");
+    let run = clout_with_input(&["inspect", at.to_str().expect("utf-8")], "");
+    assert_eq!(run.code, 2);
+    assert!(!run.stderr.contains("largest possible"), "{}", run.stderr);
+    let past = tmp("past-limit.img");
+    std::fs::write(&past, vec![0u8; max + 1]).expect("write");
+    let run = clout_with_input(&["inspect", past.to_str().expect("utf-8")], "");
+    assert_eq!(run.code, 2);
+    assert!(run.stderr.contains("largest possible"), "{}", run.stderr);
+    let _ = std::fs::remove_file(at);
+    let _ = std::fs::remove_file(past);
+}
+
 /// The digest line `clout compile` and `clout inspect` print.
 fn digest_line(text: &str) -> String {
     text.lines()

@@ -160,7 +160,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
     (
         "escape-sequences.clout",
         "5:25",
-        "expected a condition, found `�`",
+        "expected a condition, found `\\u{1b}`",
     ),
     (
         "four-state-no-only.clout",
@@ -387,7 +387,7 @@ const EXPECTED: &[(&str, &str, &str)] = &[
     (
         "vertical-tab-form-feed.clout",
         "4:9",
-        "expected a condition, found `�`",
+        "expected a condition, found `\\u{b}`",
     ),
     (
         "very-long-name.clout",

@@ -367,26 +367,22 @@ impl LineStarts {
     }
 }
 
-/// A character as it may be shown on a terminal: control characters and
-/// bidirectional formatting characters (which can reorder or hide text)
-/// become U+FFFD.
+/// A character as it may be shown on a terminal: control characters,
+/// bidirectional and other invisible format characters (which can reorder
+/// or hide text; [`crate::escape::is_hidden`]) become U+FFFD, one column
+/// wide, so the carets under a quoted line stay aligned.
 pub(crate) fn shown(c: char) -> char {
-    let bidi =
-        matches!(c, '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{200e}' | '\u{200f}' | '\u{061c}');
-    if (c.is_control() && c != '\n') || bidi {
+    if c != '\n' && crate::escape::is_hidden(c) {
         '\u{fffd}'
     } else {
         c
     }
 }
 
-/// `text` with [`shown`] applied to every character.
+/// A file name, message or hint for a terminal: newlines kept, every other
+/// hidden character as a visible escape (`\u{1b}`, [`crate::escape`]).
 fn printable(text: &str) -> std::borrow::Cow<'_, str> {
-    if text.chars().all(|c| shown(c) == c) {
-        std::borrow::Cow::Borrowed(text)
-    } else {
-        std::borrow::Cow::Owned(text.chars().map(shown).collect())
-    }
+    crate::escape::terminal_lines(text)
 }
 
 /// Renders every diagnostic, in order.

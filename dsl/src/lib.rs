@@ -40,6 +40,7 @@ pub mod amount;
 pub mod compile;
 pub mod data;
 pub mod diagnostic;
+pub mod escape;
 pub mod exact;
 pub mod lint;
 pub mod print;

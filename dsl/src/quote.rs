@@ -45,11 +45,11 @@ pub fn is_plain(name: &str) -> bool {
         && !KEYWORDS.iter().any(|k| k.eq_ignore_ascii_case(name))
 }
 
-/// Whether a character must be escaped inside a quoted name: control
-/// characters and bidirectional formatting characters.
+/// Whether a character must be escaped inside a quoted name: control,
+/// bidirectional and other invisible format characters
+/// ([`crate::escape::is_hidden`]).
 fn needs_escape(c: char) -> bool {
-    c.is_control()
-        || matches!(c, '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{200e}' | '\u{200f}' | '\u{061c}')
+    crate::escape::is_hidden(c)
 }
 
 /// `name` as it must be written in rule text: as is when plain, else quoted
@@ -78,20 +78,7 @@ pub fn written(name: &str) -> Cow<'_, str> {
 /// control and bidirectional formatting characters written as `\u{...}`,
 /// everything else as is, without quotes.
 pub fn shown(text: &str) -> Cow<'_, str> {
-    if !text.chars().any(needs_escape) {
-        return Cow::Borrowed(text);
-    }
-    Cow::Owned(
-        text.chars()
-            .map(|c| {
-                if needs_escape(c) {
-                    format!("\\u{{{:x}}}", u32::from(c))
-                } else {
-                    c.to_string()
-                }
-            })
-            .collect(),
-    )
+    crate::escape::terminal(text)
 }
 
 /// The text between the quotes of a quoted name, unescaped. On a bad

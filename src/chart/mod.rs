@@ -28,24 +28,12 @@ pub const OKABE_ITO: [&str; 8] = [
     "#000000", "#e69f00", "#56b4e9", "#009e73", "#f0e442", "#0072b2", "#d55e00", "#cc79a7",
 ];
 
-/// Text for XML content and attribute values: `& < > " '` replaced, and
-/// characters XML 1.0 forbids (controls other than tab, line feed and
-/// carriage return) dropped.
+/// Text for XML content and attribute values ([`crate::escape::xml`]):
+/// `& < > " '` as entities, characters XML 1.0 forbids as U+FFFD, other
+/// hidden characters (bidirectional overrides, C1 controls) as visible
+/// `\u{..}` escapes; tab and line breaks kept.
 pub fn escape(s: &str) -> String {
-    let mut out = String::with_capacity(s.len());
-    for c in s.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#39;"),
-            '\t' | '\n' | '\r' => out.push(c),
-            c if (c as u32) < 0x20 || c == '\u{fffe}' || c == '\u{ffff}' => {}
-            c => out.push(c),
-        }
-    }
-    out
+    crate::escape::xml(s).into_owned()
 }
 
 /// The least of 1, 2, 2.5, 5 times a power of ten at or above `v` (1 for 0).
@@ -149,7 +137,8 @@ mod tests {
             escape("a<b & \"c\" 'd'>"),
             "a&lt;b &amp; &quot;c&quot; &#39;d&#39;&gt;"
         );
-        assert_eq!(escape("x\u{1}y\u{fffe}\tz"), "xy\tz");
+        assert_eq!(escape("x\u{1}y\u{fffe}\tz"), "x\u{fffd}y\u{fffd}\tz");
+        assert_eq!(escape("a\u{202e}b"), "a\\u{202e}b");
         assert_eq!(escape("]]>"), "]]&gt;");
     }
 }

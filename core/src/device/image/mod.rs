@@ -103,8 +103,10 @@ const KIND_ANY: u8 = 2;
 pub const ROSTER_LEN: usize = roster::DIGEST_LEN + 4;
 
 /// The longest image any build can write (65,535 members, every limit
-/// reached, 8-byte weights, every name of the longest length).
-const MAX_IMAGE_LEN: usize = HEADER_LEN
+/// reached, 8-byte weights, every name of the longest length). Readers of
+/// files and streams read at most one byte more, so a huge or endless input
+/// (`/dev/zero`) is refused without being read whole.
+pub const MAX_IMAGE_LEN: usize = HEADER_LEN
     + MAX_ATTRIBUTES * (1 + 65_535 * 8)
     + MAX_ATOMS * LINEAR_LEN
     + MAX_NODES * NODE_LEN
