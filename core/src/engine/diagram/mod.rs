@@ -37,6 +37,7 @@
 #![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
 
 mod build;
+mod minimal;
 mod paths;
 #[cfg(test)]
 mod tests;
@@ -53,6 +54,7 @@ use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::rule::Rule;
 use build::{build, proper_and_strong};
+use minimal::{dominance_chain, minimal_counts};
 use paths::count_diagram;
 
 /// Member order used to build the diagram.
@@ -195,11 +197,61 @@ fn estimate_nodes<W: AsRef<[u64]>>(rule: &Rule<W>) -> u128 {
     nodes
 }
 
-/// Runs the diagram engine with Shapley-Shubik pivots.
+/// Runs the diagram engine with Shapley-Shubik pivots, and, for rules whose
+/// members' weights form a chain under domination, the minimal winning and
+/// blocking counts and the Johnston, Deegan-Packel and public good indices
+/// (see [`minimal`]; left unknown for other rules or when the second diagram
+/// is over the node or memory limit).
+pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    members: &mut [MemberCounts<C>],
+    order: Order,
+    memory_limit: u64,
+) -> Result<RuleCounts<C>, Error> {
+    let mut counts = count_swings(rule, members, order, memory_limit)?;
+    let Some(chain) = dominance_chain(rule) else {
+        return Ok(counts);
+    };
+    let d = match build(rule, chain, DEFAULT_MAX_NODES) {
+        Ok(d) => d,
+        Err(Error::TooCostly { .. }) => return Ok(counts),
+        Err(e) => return Err(e),
+    };
+    let n = rule.members();
+    let widen = |v: u128| C::from_u128(v).ok_or(Error::CountOverflow);
+    let found = if C::BITS > 128 && n < 127 {
+        minimal_counts::<u128>(&d, memory_limit).and_then(|m| {
+            Ok(minimal::Minimal {
+                winning: widen(m.winning)?,
+                blocking: widen(m.blocking)?,
+                containing: m.containing.into_iter().map(widen).collect::<Result<_, _>>()?,
+                deegan_packel_raw: m.deegan_packel_raw,
+                johnston_raw: m.johnston_raw,
+            })
+        })
+    } else {
+        minimal_counts::<C>(&d, memory_limit)
+    };
+    let m = match found {
+        Ok(m) => m,
+        Err(Error::MemoryLimit { .. }) => return Ok(counts),
+        Err(e) => return Err(e),
+    };
+    counts.minimal_winning = Some(m.winning);
+    counts.minimal_blocking = Some(m.blocking);
+    for (i, out) in members.iter_mut().enumerate().take(n) {
+        out.minimal_winning = Some(m.containing[i]);
+        out.deegan_packel_raw = Some(m.deegan_packel_raw[i]);
+        out.johnston_raw = Some(m.johnston_raw[i]);
+    }
+    Ok(counts)
+}
+
+/// Swings and Shapley-Shubik pivots from the diagram in `order`.
 ///
 /// Below 127 members every count fits in a `u128`, so a wider count type
 /// is filled from a `u128` run (the same exact numbers, several times faster).
-pub(crate) fn count<W: AsRef<[u64]>, C: Counter>(
+fn count_swings<W: AsRef<[u64]>, C: Counter>(
     rule: &Rule<W>,
     members: &mut [MemberCounts<C>],
     order: Order,

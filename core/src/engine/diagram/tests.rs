@@ -94,3 +94,62 @@ fn memory_limit_is_an_error() {
     let got = count(&rule, &mut members, Order::HeavyFirst, 64);
     assert!(matches!(got, Err(Error::MemoryLimit { limit: 64, .. })));
 }
+
+/// Relative closeness of two `f64` sums of exact ratios.
+fn close(a: f64, b: f64) -> bool {
+    (a - b).abs() <= 1e-12 * a.abs().max(b.abs()).max(1e-300)
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+    /// Minimal winning and blocking counts, Deegan-Packel, public good and
+    /// Johnston from the diagram equal those of enumerating all 2^n
+    /// coalitions, on rules whose weights form a chain (the columns sorted
+    /// alike, then the members shuffled) and on rules whose weights do not
+    /// (where the diagram must leave them unknown).
+    #[test]
+    fn minimal_coalitions_match_enumeration(
+        n in 1usize..13,
+        chain in any::<bool>(),
+        big in any::<bool>(),
+        seed in prop::collection::vec(0u64..1000, 24),
+        shuffle in prop::collection::vec(any::<u32>(), 12),
+        shares in prop::collection::vec(0u64..=100, 3),
+        shape in 0u8..3,
+    ) {
+        let scale = if big { 1_000_000_000_000 } else { 1 };
+        let mut first: Vec<u64> = seed[..n].iter().map(|&x| x % 13).collect();
+        let mut second: Vec<u64> = seed[n..2 * n].iter().map(|&x| x * scale + x % 7).collect();
+        if chain {
+            first.sort_unstable();
+            second.sort_unstable();
+            let mut perm: Vec<usize> = (0..n).collect();
+            perm.sort_by_key(|&i| shuffle[i]);
+            first = perm.iter().map(|&i| first[i]).collect();
+            second = perm.iter().map(|&i| second[i]).collect();
+        }
+        let t0: u64 = first.iter().sum();
+        let t1: u64 = second.iter().sum();
+        let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
+        let mut w = first;
+        w.extend(second);
+        let rule = rule_from(n, w, q, shape);
+        let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
+        let mut members = vec![MemberCounts::<u128>::EMPTY; n];
+        let got = count(&rule, &mut members, Order::LightFirst, DEFAULT_MEMORY_LIMIT).unwrap();
+        if minimal::dominance_chain(&rule).is_none() {
+            prop_assert!(!chain);
+            prop_assert_eq!(got.minimal_winning, None);
+            return Ok(());
+        }
+        prop_assert_eq!(got.minimal_winning, oracle.minimal_winning);
+        prop_assert_eq!(got.minimal_blocking, oracle.minimal_blocking);
+        for i in 0..n {
+            let (a, b) = (&members[i], &oracle_members[i]);
+            prop_assert_eq!(a.minimal_winning, b.minimal_winning, "member {}", i);
+            prop_assert!(close(a.deegan_packel_raw.unwrap(), b.deegan_packel_raw.unwrap()), "member {}", i);
+            prop_assert!(close(a.johnston_raw.unwrap(), b.johnston_raw.unwrap()),
+                "member {}: {:?} vs {:?}", i, a.johnston_raw, b.johnston_raw);
+        }
+    }
+}
