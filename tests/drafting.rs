@@ -117,8 +117,14 @@ fn diagram_agrees(rule: &Rule<Vec<u64>>) {
     let b = brute(rule);
     let t = got.table();
     assert_eq!(got.rule.winning.to_string(), b.winning.to_string());
-    assert_eq!(got.rule.minimal_winning.unwrap().to_string(), b.minimal_winning.to_string());
-    assert_eq!(got.rule.minimal_blocking.unwrap().to_string(), b.minimal_blocking.to_string());
+    assert_eq!(
+        got.rule.minimal_winning.unwrap().to_string(),
+        b.minimal_winning.to_string()
+    );
+    assert_eq!(
+        got.rule.minimal_blocking.unwrap().to_string(),
+        b.minimal_blocking.to_string()
+    );
     let containing_total: u64 = b.containing.iter().sum();
     let johnston_total: f64 = b.by_kappa.iter().map(|k| reciprocal(k)).sum();
     for i in 0..n {
