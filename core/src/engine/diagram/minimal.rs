@@ -292,8 +292,11 @@ impl Johnston {
 /// next yes vote not yet cast; `next(y, z)`: the shadow y and the next
 /// member's shadow z.
 struct ShadowPairs {
-    main: Vec<(Vec<(u32, u32)>, Vec<f64>)>,
+    main: Vec<PairLevel>,
 }
+
+/// One level's sorted pairs and their probabilities.
+type PairLevel = (Vec<(u32, u32)>, Vec<f64>);
 
 impl ShadowPairs {
     fn count(d: &Diagram, always: &[bool], never: &[bool]) -> Self {
