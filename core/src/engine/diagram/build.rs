@@ -386,3 +386,114 @@ pub(crate) fn proper_and_strong<W: AsRef<[u64]>>(
     }
     Ok((proper, strong))
 }
+
+/// The diagram of where two rules over the same members differ: its TRUE
+/// leaves are the coalitions that one rule passes and the other does not.
+/// A node is the pair of the two rules' node tuples; once both are decided
+/// it is carried down unchanged. Refuses past `max_nodes` nodes.
+pub(crate) fn build_difference<A: AsRef<[u64]>, B: AsRef<[u64]>>(
+    a: &Rule<A>,
+    b: &Rule<B>,
+    order: Vec<usize>,
+    max_nodes: usize,
+) -> Result<Diagram, Error> {
+    let n = a.members();
+    let (ma, mb) = (a.atoms().len(), b.atoms().len());
+    let weights_of = |attribute: usize, rule_weight: &dyn Fn(usize, usize) -> u64| -> Vec<u64> {
+        order.iter().map(|&i| rule_weight(attribute, i)).collect()
+    };
+    let mut ca: Vec<AtomClasses> = a
+        .atoms()
+        .iter()
+        .map(|t| AtomClasses::new(weights_of(usize::from(t.attribute), &|x, i| a.weight(x, i))))
+        .collect();
+    let mut cb: Vec<AtomClasses> = b
+        .atoms()
+        .iter()
+        .map(|t| AtomClasses::new(weights_of(usize::from(t.attribute), &|x, i| b.weight(x, i))))
+        .collect();
+    let width = ma + mb;
+    let mut key = vec![0u64; width];
+    {
+        let qa: Vec<u64> = a.atoms().iter().map(|t| t.quota).collect();
+        let qb: Vec<u64> = b.atoms().iter().map(|t| t.quota).collect();
+        let (ka, kb) = key.split_at_mut(ma);
+        classify(a, &mut ca, 0, &qa, ka);
+        classify(b, &mut cb, 0, &qb, kb);
+    }
+    let mut current = LevelTable::new(width);
+    current.intern(&key);
+    let mut starts = vec![0usize];
+    let (mut yes, mut no) = (Vec::new(), Vec::new());
+    let mut total = 1usize;
+    let mut residual = vec![0u64; ma.max(mb)];
+    for level in 0..n {
+        starts.push(starts[level] + current.len());
+        let member = order[level];
+        let mut next = LevelTable::new(width);
+        for id in 0..current.len() {
+            let cur: Vec<u64> = current.key(id).to_vec();
+            let mut children = [0u32; 2];
+            for (slot, vote_yes) in [(0usize, true), (1, false)] {
+                let (src_a, src_b) = cur.split_at(ma);
+                let (dst_a, dst_b) = key.split_at_mut(ma);
+                step(a, &mut ca, level, member, vote_yes, src_a, dst_a, &mut residual);
+                step(b, &mut cb, level, member, vote_yes, src_b, dst_b, &mut residual);
+                children[slot] = next.intern(&key);
+            }
+            yes.push(children[0]);
+            no.push(children[1]);
+        }
+        total += next.len();
+        within_nodes(total, max_nodes)?;
+        current = next;
+    }
+    let base = starts[n];
+    for l in 0..n {
+        for v in starts[l]..starts[l + 1] {
+            yes[v] += starts[l + 1] as u32;
+            no[v] += starts[l + 1] as u32;
+        }
+    }
+    let last_true = (0..current.len())
+        .map(|id| {
+            let k = current.key(id);
+            (k[0] == TRUE_KEY) != (k[ma] == TRUE_KEY)
+        })
+        .collect();
+    starts.push(base + current.len());
+    Ok(Diagram {
+        order,
+        starts,
+        yes,
+        no,
+        last_true,
+    })
+}
+
+/// One rule's part of a product node after `member` (at `level`) votes.
+#[allow(clippy::too_many_arguments)]
+fn step<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    classes: &mut [AtomClasses],
+    level: usize,
+    member: usize,
+    vote_yes: bool,
+    src: &[u64],
+    dst: &mut [u64],
+    residual: &mut [u64],
+) {
+    if decided(src) {
+        dst.copy_from_slice(src);
+        return;
+    }
+    for (j, t) in rule.atoms().iter().enumerate() {
+        let w = if vote_yes {
+            rule.weight(usize::from(t.attribute), member)
+        } else {
+            0
+        };
+        residual[j] = src[j].saturating_sub(w);
+    }
+    classify(rule, classes, level + 1, &residual[..src.len()], dst);
+}

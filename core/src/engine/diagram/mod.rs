@@ -37,6 +37,7 @@
 #![allow(clippy::indexing_slicing, clippy::arithmetic_side_effects)]
 
 mod build;
+mod differ;
 mod minimal;
 mod paths;
 #[cfg(test)]
@@ -54,6 +55,7 @@ use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::rule::Rule;
 use build::{build, proper_and_strong};
+pub use differ::{difference, Difference};
 use minimal::{dominance_chain, minimal_counts};
 use paths::count_diagram;
 

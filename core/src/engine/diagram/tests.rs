@@ -153,3 +153,62 @@ proptest! {
         }
     }
 }
+
+/// Whether `rule` passes the coalition of the bits of `mask`.
+fn passes_mask(rule: &Rule<Vec<u64>>, mask: u32) -> bool {
+    let sums: Vec<u64> = (0..rule.attributes())
+        .map(|a| {
+            (0..rule.members())
+                .filter(|i| mask & (1 << i) != 0)
+                .map(|i| rule.weight(a, i))
+                .sum()
+        })
+        .collect();
+    rule.passes_with_sums(&sums)
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
+    /// The difference diagram counts exactly the coalitions two rules decide
+    /// differently, and its witness is one of them with the fewest members.
+    #[test]
+    fn difference_matches_enumeration(
+        n in 1usize..13,
+        seed in prop::collection::vec(0u64..1000, 24),
+        shares_a in prop::collection::vec(0u64..=100, 3),
+        shares_b in prop::collection::vec(0u64..=100, 3),
+        shapes in (0u8..3, 0u8..3),
+        same in any::<bool>(),
+    ) {
+        let w: Vec<u64> = seed[..2 * n].iter().map(|&x| x % 17 + x / 500).collect();
+        let t0: u64 = w[..n].iter().sum();
+        let t1: u64 = w[n..].iter().sum();
+        let quotas = |s: &[u64]| [t0 * s[0] / 100 + 1, t1 * s[1] / 100, t0 * s[2] / 100];
+        let a = rule_from(n, w.clone(), quotas(&shares_a), shapes.0);
+        let b = if same {
+            a.clone()
+        } else {
+            rule_from(n, w, quotas(&shares_b), shapes.1)
+        };
+        let mut differ = 0u128;
+        let mut fewest: Option<u32> = None;
+        for mask in 0u32..(1 << n) {
+            if passes_mask(&a, mask) != passes_mask(&b, mask) {
+                differ += 1;
+                fewest = Some(fewest.map_or(mask.count_ones(), |f| f.min(mask.count_ones())));
+            }
+        }
+        let got = difference::<_, _, u128>(&a, &b, DEFAULT_MAX_NODES).unwrap();
+        prop_assert_eq!(got.coalitions, differ);
+        match (&got.smallest, fewest) {
+            (None, None) => {}
+            (Some(c), Some(f)) => {
+                prop_assert_eq!(c.len() as u32, f);
+                let mask = c.iter().fold(0u32, |m, &i| m | (1 << i));
+                prop_assert!(passes_mask(&a, mask) != passes_mask(&b, mask));
+                prop_assert_eq!(got.first_passes, passes_mask(&a, mask));
+            }
+            other => prop_assert!(false, "witness {:?}", other),
+        }
+    }
+}
