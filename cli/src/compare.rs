@@ -99,7 +99,12 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
     }
     match (&answer.witness, answer.sampled) {
         (None, None) => {
-            let checked = if answer.patterns_are_coalitions {
+            let checked = if answer.differing_coalitions.is_some() {
+                format!(
+                    "all {} coalitions, on the decision diagram of their difference",
+                    drafting::coalitions(n)
+                )
+            } else if answer.patterns_are_coalitions {
                 format!("all {} coalitions", drafting::coalitions(n))
             } else {
                 format!(
@@ -134,8 +139,17 @@ pub fn run(args: &CompareArgs) -> Result<Outcome, Failure> {
             };
             let _ = writeln!(
                 out,
-                "Different rules. {which}:\n  {who}\n  voting yes (the others no): {yes} passes, {no} fails.\n"
+                "Different rules. {which}:\n  {who}\n  voting yes (the others no): {yes} passes, {no} fails."
             );
+            if let Some(count) = &answer.differing_coalitions {
+                let _ = writeln!(
+                    out,
+                    "  They decide {} of the {} coalitions differently (exact).",
+                    drafting::thousands(count),
+                    drafting::coalitions(n)
+                );
+            }
+            out.push('\n');
             changes(&mut out, &ia, ra, rb, &answer)?;
         }
         (None, Some(sampled)) => {

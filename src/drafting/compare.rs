@@ -1,22 +1,34 @@
 //! Are two drafts the same rule (the same coalitions pass)? If not, a
-//! smallest coalition on which they differ and how each member's power
-//! changes. Members are matched by name when both rules name the same
-//! members, else by position (or as the caller insists). Exact on every
-//! pattern of members interchangeable in both; beyond the pattern limit
-//! the comparison samples and never claims sameness it did not check (see
-//! [`crate::toolkit::compare`]). Two exact analyses when the rules differ.
+//! smallest coalition on which they differ, how many coalitions they decide
+//! differently, and how each member's power changes. Members are matched by
+//! name when both rules name the same members, else by position (or as the
+//! caller insists).
+//!
+//! Exact on the decision diagram of the two rules' difference (see
+//! [`clout_core::engine::diagram::difference`]): every coalition, with at
+//! most [`DIFFERENCE_NODES`] nodes. Rules with few patterns of members
+//! interchangeable in both are also compared pattern by pattern (the two
+//! answers must agree). Only when the diagram is over its limit and the
+//! patterns too many does the comparison sample, and it never claims
+//! sameness it did not check (see [`crate::toolkit::compare`]). Two exact
+//! analyses when the rules differ.
 
-use clout_core::Rule;
+use clout_core::engine::diagram;
+use clout_core::{Count1024, Counter, Rule};
 use clout_dsl::{CompiledRule, RuleFile};
 
 use super::{
-    exact_power, rule_ref, toolkit_failure, Comparison, Difference, Matching, MemberChange, Members, Verdict,
-    Watch,
+    core_failure, exact_power, internal, rule_ref, toolkit_failure, Comparison, Difference, Matching,
+    MemberChange, Members, Verdict, Watch,
 };
 use crate::failure::Failure;
 use crate::report::{CAUTION, MODEL};
 use crate::toolkit::compare::{self as equivalence, Equivalence};
-use crate::toolkit::profile;
+use crate::toolkit::{profile, PROFILE_LIMIT};
+
+/// Most nodes of the difference diagram [`compare`] builds (about 1.5 GB at
+/// the largest; union-27 against a variant takes some thousands).
+pub const DIFFERENCE_NODES: usize = 20_000_000;
 
 /// How to compare.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -85,21 +97,44 @@ pub fn compare(
     watch: &mut impl Watch,
 ) -> Result<Comparison, Failure> {
     let (order, matched_by) = matching(fa, fb, options.by)?;
-    let b = equivalence::reorder(&rb.rule, &order).map_err(|e| toolkit_failure(&rb.name, e))?;
-    let answer = watch
-        .step(
-            &format!("comparing rules `{}` and `{}`", ra.name, rb.name),
-            || equivalence::compare(&ra.rule, &b),
-        )?
-        .map_err(|e| toolkit_failure(&ra.name, e))?;
     let n = ra.rule.members();
-    let patterns = patterns_of_both(&ra.rule, &b);
+    let a = equivalence::reorder(&ra.rule, &(0..n).collect::<Vec<_>>())
+        .map_err(|e| toolkit_failure(&ra.name, e))?;
+    let b = equivalence::reorder(&rb.rule, &order).map_err(|e| toolkit_failure(&rb.name, e))?;
+    let patterns = patterns_of_both(&a, &b);
+    let exact = watch.step(
+        &format!(
+            "comparing rules `{}` and `{}` on their difference diagram",
+            ra.name, rb.name
+        ),
+        || diagram::difference::<_, _, Count1024>(&a, &b, DIFFERENCE_NODES),
+    )?;
+    let exact = match exact {
+        Ok(d) => Some(d),
+        Err(clout_core::Error::TooCostly { .. }) => None,
+        Err(e) => return Err(core_failure(&ra.name, e)),
+    };
+    let by_patterns = if exact.is_none() || patterns <= PROFILE_LIMIT as u128 {
+        let answer = watch
+            .step(
+                &format!(
+                    "comparing rules `{}` and `{}` pattern by pattern",
+                    ra.name, rb.name
+                ),
+                || equivalence::compare(&a, &b),
+            )?
+            .map_err(|e| toolkit_failure(&ra.name, e))?;
+        Some(answer)
+    } else {
+        None
+    };
     let mut out = Comparison {
         a: rule_ref(fa, ra),
         b: rule_ref(fb, rb),
         matched_by,
         verdict: Verdict::Same,
         witness: None,
+        differing_coalitions: exact.as_ref().map(|d| d.coalitions.to_string()),
         patterns,
         patterns_are_coalitions: n < 128 && patterns == 1u128 << n,
         sampled: None,
@@ -110,13 +145,22 @@ pub fn compare(
         caution: CAUTION.to_string(),
         order,
     };
-    match answer {
-        Equivalence::Same { .. } => return Ok(out),
-        Equivalence::Different {
-            coalition,
-            first_passes,
-            smallest,
-        } => {
+    match (&exact, by_patterns) {
+        (Some(d), Some(Equivalence::Same { .. })) if !d.coalitions.is_zero() => {
+            return Err(internal(&ra.name, "the diagram and the patterns disagree"));
+        }
+        (Some(d), Some(Equivalence::Different { .. })) if d.coalitions.is_zero() => {
+            return Err(internal(&ra.name, "the diagram and the patterns disagree"));
+        }
+        (_, Some(Equivalence::Same { .. })) => return Ok(out),
+        (
+            _,
+            Some(Equivalence::Different {
+                coalition,
+                first_passes,
+                smallest,
+            }),
+        ) => {
             out.verdict = Verdict::Different;
             out.witness = Some(Difference {
                 coalition: Members::of(fa, coalition),
@@ -124,10 +168,22 @@ pub fn compare(
                 smallest,
             });
         }
-        Equivalence::Undecided { sampled, .. } => {
+        (Some(d), None) => {
+            let Some(coalition) = d.smallest.clone() else {
+                return Ok(out);
+            };
+            out.verdict = Verdict::Different;
+            out.witness = Some(Difference {
+                coalition: Members::of(fa, coalition),
+                passes: if d.first_passes { "a" } else { "b" }.to_string(),
+                smallest: true,
+            });
+        }
+        (_, Some(Equivalence::Undecided { sampled, .. })) => {
             out.verdict = Verdict::Undecided;
             out.sampled = Some(sampled);
         }
+        (None, None) => return Err(internal(&ra.name, "no comparison ran")),
     }
     let pa = exact_power(&ra.rule, &ra.name, options.budget, watch)?;
     let pb = exact_power(&b, &rb.name, options.budget, watch)?;

@@ -201,6 +201,10 @@ pub struct Comparison {
     /// A coalition on which they differ (by A's names); null when the same,
     /// undecided, or different only by their exact counts.
     pub witness: Option<Difference>,
+    /// Coalitions that one rule passes and the other does not, exact
+    /// decimal (`"0"` when the same); null when the difference diagram was
+    /// over its node limit.
+    pub differing_coalitions: Option<String>,
     /// Patterns of members interchangeable in both that were compared (or,
     /// when `sampled` is set, that a full comparison would need), decimal.
     #[serde(serialize_with = "decimal")]
