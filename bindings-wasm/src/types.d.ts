@@ -286,6 +286,8 @@ export interface Comparison {
   matched_by: "name" | "position";
   verdict: "same" | "different" | "undecided";
   witness: { coalition: Members; passes: string; smallest: boolean } | null;
+  /** Coalitions one rule passes and the other does not, exact decimal; null past the diagram's node limit. */
+  differing_coalitions: string | null;
   members: { name: string; banzhaf_a: number; banzhaf_b: number; shapley_shubik_a: number; shapley_shubik_b: number }[] | null;
   passage_probability_a: number | null;
   passage_probability_b: number | null;
