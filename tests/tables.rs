@@ -30,7 +30,9 @@ fn name() -> impl Strategy<Value = String> {
         .prop_map(|s| s.trim().to_string())
         .prop_filter("a name", |s| !s.is_empty())
         // Not a name the rule file itself declares (group, rule, attributes).
-        .prop_filter("not declared", |s| !["h", "r", "tokens", "seats"].contains(&s.as_str()))
+        .prop_filter("not declared", |s| {
+            !["h", "r", "tokens", "seats"].contains(&s.as_str())
+        })
 }
 
 fn amount() -> impl Strategy<Value = String> {

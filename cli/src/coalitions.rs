@@ -71,7 +71,8 @@ pub fn run(args: &CoalitionsArgs) -> Result<Outcome, Failure> {
     // Patterns read better than lists once a group has three or more members.
     let grouped = drafting::groups(rule).iter().any(|t| t.len() > 2);
     let total = text::count(&listing.count);
-    let patterns_mode = grouped && !args.each;
+    // No patterns when counted on the decision diagram (past the pattern table's limit).
+    let patterns_mode = grouped && !args.each && listing.pattern_count > 0;
     let (table_out, complete) = if patterns_mode {
         let _ = writeln!(
             out,
@@ -93,7 +94,12 @@ pub fn run(args: &CoalitionsArgs) -> Result<Outcome, Failure> {
         }
         (t, listing.patterns.len() == listing.pattern_count)
     } else {
-        let _ = writeln!(out, "{total} {what};\n{meaning}:");
+        let how = if listing.pattern_count == 0 && listing.count != "0" {
+            " (counted exactly on the rule's decision diagram)"
+        } else {
+            ""
+        };
+        let _ = writeln!(out, "{total} {what}{how};\n{meaning}:");
         let mut t = Table::new(vec![
             ("members".to_string(), Align::Right),
             ("coalition".to_string(), Align::Left),

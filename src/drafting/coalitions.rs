@@ -3,15 +3,31 @@
 //! rep1..rep435") and one by one, each list up to a limit, fewest members
 //! first. One scan of the profile table, O(P m); O(n) per listed coalition
 //! (see [`crate::toolkit::coalitions`]).
+//!
+//! Past the profile table's limit (about 22 members with distinct weights),
+//! rules whose members' weights form a chain (each at least as heavy as the
+//! next in every attribute, as in a double majority of head count and
+//! population) are counted and listed on their decision diagram instead
+//! (see [`clout_core::engine::diagram::minimal_coalitions`]), with at most
+//! [`COALITION_NODES`] nodes: O(N) to count, O(n) per listed coalition.
+//! The answer then has no patterns (`pattern_count` 0).
 
+use clout_core::engine::diagram;
+use clout_core::Count1024;
 use clout_dsl::{CompiledRule, RuleFile};
 
-use super::{rule_ref, toolkit_failure, CoalitionKind, Coalitions, Members, Part, Pattern, Watch};
+use super::{
+    core_failure, rule_ref, toolkit_failure, CoalitionKind, Coalitions, Members, Part, Pattern, Watch,
+};
 use crate::failure::Failure;
 use crate::report::CAUTION;
 use crate::toolkit::coalitions::{expand, list, Kind};
 use crate::toolkit::profile::{interchangeable, ProfileTable};
-use crate::toolkit::PROFILE_LIMIT;
+use crate::toolkit::{Error, PROFILE_LIMIT};
+
+/// Most nodes of the decision diagram [`coalitions`] builds past the
+/// profile table's limit.
+pub const COALITION_NODES: usize = 20_000_000;
 
 /// What to list.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -44,13 +60,16 @@ pub fn coalitions(
         CoalitionKind::MinimalWinning => Kind::MinimalWinning,
         CoalitionKind::MinimalBlocking => Kind::MinimalBlocking,
     };
-    let (table, listing) = watch
-        .step(&format!("listing coalitions of rule `{}`", rule.name), || {
-            let table = ProfileTable::of_rule(&rule.rule, interchangeable(&rule.rule), PROFILE_LIMIT)?;
-            let listing = list(&table, kind)?;
-            Ok((table, listing))
-        })?
-        .map_err(fail)?;
+    let tabulated = watch.step(&format!("listing coalitions of rule `{}`", rule.name), || {
+        let table = ProfileTable::of_rule(&rule.rule, interchangeable(&rule.rule), PROFILE_LIMIT)?;
+        let listing = list(&table, kind)?;
+        Ok((table, listing))
+    })?;
+    let (table, listing) = match tabulated {
+        Ok(t) => t,
+        Err(e @ Error::TooLarge { .. }) => return on_diagram(file, rule, options, e, watch),
+        Err(e) => return Err(fail(e)),
+    };
     let mut patterns = Vec::new();
     for p in listing.patterns.iter().take(options.limit) {
         let parts = p
@@ -83,6 +102,46 @@ pub fn coalitions(
         pattern_count: listing.patterns.len(),
         patterns,
         coalitions,
+        caution: CAUTION.to_string(),
+    })
+}
+
+/// The coalitions counted and listed on the rule's decision diagram, or
+/// the table's refusal `too_large` when the diagram method does not apply.
+fn on_diagram(
+    file: &RuleFile,
+    rule: &CompiledRule,
+    options: &CoalitionOptions,
+    too_large: Error,
+    watch: &mut impl Watch,
+) -> Result<Coalitions, Failure> {
+    let blocking = options.kind == CoalitionKind::MinimalBlocking;
+    let found = watch
+        .step(
+            &format!(
+                "counting coalitions of rule `{}` on its decision diagram",
+                rule.name
+            ),
+            || {
+                diagram::minimal_coalitions::<_, Count1024>(
+                    &rule.rule,
+                    blocking,
+                    options.limit,
+                    COALITION_NODES,
+                )
+            },
+        )?
+        .map_err(|e| core_failure(&rule.name, e))?;
+    let Some(found) = found else {
+        return Err(toolkit_failure(&rule.name, too_large));
+    };
+    Ok(Coalitions {
+        rule: rule_ref(file, rule),
+        kind: options.kind,
+        count: found.count.to_string(),
+        pattern_count: 0,
+        patterns: Vec::new(),
+        coalitions: found.listed.into_iter().map(|c| Members::of(file, c)).collect(),
         caution: CAUTION.to_string(),
     })
 }

@@ -357,7 +357,8 @@ pub struct Coalitions {
     pub kind: CoalitionKind,
     /// How many there are, exact decimal.
     pub count: String,
-    /// How many patterns of interchangeable members they form.
+    /// How many patterns of interchangeable members they form; 0 when they
+    /// were counted on the decision diagram (past the pattern table's limit).
     pub pattern_count: usize,
     /// The first patterns (at most the limit), fewest members first.
     pub patterns: Vec<Pattern>,

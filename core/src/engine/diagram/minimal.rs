@@ -114,7 +114,7 @@ pub(crate) fn dual(d: &Diagram) -> Diagram {
 }
 
 /// Number of minimal winning coalitions of a diagram in desirability order.
-fn minimal_total<C: Counter>(d: &Diagram) -> Result<C, Error> {
+pub(crate) fn minimal_total<C: Counter>(d: &Diagram) -> Result<C, Error> {
     let n = d.order.len();
     let (always, _) = constants(d);
     let mut below = vec![C::ZERO; d.starts[n + 1]];
@@ -409,5 +409,78 @@ fn next_known(y: usize, z: usize, always: &[bool], never: &[bool], wins: &[f64])
         Some(1.0 - wins[y])
     } else {
         None
+    }
+}
+
+/// Minimal winning (or blocking) coalitions listed from a diagram in
+/// desirability order, fewest members first, up to `limit`; `None` when
+/// the diagram has more than 127 members (sizes are kept in a `u128` set).
+pub(crate) fn list_minimal(d: &Diagram, limit: usize) -> Option<Vec<Vec<usize>>> {
+    let n = d.order.len();
+    if n > 127 {
+        return None;
+    }
+    let (always, _) = constants(d);
+    let last = |v: usize| always[d.yes[v] as usize] && !always[d.no[v] as usize];
+    // sizes[v]: the numbers b of further yes votes with which some minimal
+    // coalition completes from v, as a bit set.
+    let mut sizes = vec![0u128; d.starts[n + 1]];
+    for v in (0..d.starts[n]).rev() {
+        let (y, z) = (d.yes[v] as usize, d.no[v] as usize);
+        sizes[v] = sizes[z] | (sizes[y] << 1) | if last(v) { 2 } else { 0 };
+    }
+    let mut out = Vec::new();
+    if always[0] {
+        // Nothing needed: the empty coalition is the only minimal one.
+        if limit > 0 {
+            out.push(Vec::new());
+        }
+        return Some(out);
+    }
+    let mut path = Vec::new();
+    for size in 1..=n {
+        if sizes[0] & (1 << size) != 0 {
+            walk(d, &sizes, &last, 0, 0, size, &mut path, &mut out, limit);
+        }
+        if out.len() >= limit {
+            break;
+        }
+    }
+    Some(out)
+}
+
+/// Every minimal coalition through node `v` (at `level`) with `k` more
+/// members, more desirable members first.
+#[allow(clippy::too_many_arguments)]
+fn walk(
+    d: &Diagram,
+    sizes: &[u128],
+    last: &dyn Fn(usize) -> bool,
+    v: usize,
+    level: usize,
+    k: usize,
+    path: &mut Vec<usize>,
+    out: &mut Vec<Vec<usize>>,
+    limit: usize,
+) {
+    if out.len() >= limit {
+        return;
+    }
+    let (y, z) = (d.yes[v] as usize, d.no[v] as usize);
+    let member = d.order[level];
+    if k == 1 && last(v) {
+        path.push(member);
+        let mut c = path.clone();
+        c.sort_unstable();
+        out.push(c);
+        path.pop();
+    }
+    if k >= 2 && sizes[y] & (1 << (k - 1)) != 0 {
+        path.push(member);
+        walk(d, sizes, last, y, level + 1, k - 1, path, out, limit);
+        path.pop();
+    }
+    if sizes[z] & (1 << k) != 0 {
+        walk(d, sizes, last, z, level + 1, k, path, out, limit);
     }
 }

@@ -323,3 +323,47 @@ fn count_as<W: AsRef<[u64]>, C: Counter>(
         engine: Engine::Diagram,
     })
 }
+
+/// Minimal winning or minimal blocking coalitions of a rule, counted and
+/// listed on its decision diagram.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct MinimalCoalitions<C> {
+    /// How many there are.
+    pub count: C,
+    /// The first `limit` of them, fewest members first (ascending member
+    /// indices within each).
+    pub listed: Vec<Vec<usize>>,
+    /// Nodes of the diagram.
+    pub nodes: usize,
+}
+
+/// The minimal winning (or, with `blocking`, minimal blocking) coalitions
+/// of `rule`, counted exactly and listed up to `limit`, on a diagram of at
+/// most `max_nodes` nodes in desirability order. `Ok(None)` when the
+/// members' weights do not form a chain under domination (the method needs
+/// a complete rule whose order the weights show) or the rule has more than
+/// 127 members. Time O(N) to count, O(n) per listed coalition (after
+/// O(N) to prepare), for N nodes; space O(N) words.
+pub fn minimal_coalitions<W: AsRef<[u64]>, C: Counter>(
+    rule: &Rule<W>,
+    blocking: bool,
+    limit: usize,
+    max_nodes: usize,
+) -> Result<Option<MinimalCoalitions<C>>, Error> {
+    let Some(chain) = dominance_chain(rule) else {
+        return Ok(None);
+    };
+    let mut d = build(rule, chain, max_nodes)?;
+    if blocking {
+        d = minimal::dual(&d);
+    }
+    let count = minimal::minimal_total::<C>(&d)?;
+    let Some(listed) = minimal::list_minimal(&d, limit) else {
+        return Ok(None);
+    };
+    Ok(Some(MinimalCoalitions {
+        count,
+        listed,
+        nodes: d.stats().nodes,
+    }))
+}

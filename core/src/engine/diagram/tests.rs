@@ -212,3 +212,56 @@ proptest! {
         }
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
+    /// The minimal winning and minimal blocking coalitions listed from the
+    /// diagram are exactly those found by testing every coalition, fewest
+    /// members first, and the counts match.
+    #[test]
+    fn minimal_listing_matches_enumeration(
+        n in 1usize..12,
+        seed in prop::collection::vec(0u64..1000, 24),
+        shares in prop::collection::vec(0u64..=100, 3),
+        shape in 0u8..3,
+        limit in 0usize..40,
+    ) {
+        let mut first: Vec<u64> = seed[..n].iter().map(|&x| x % 5).collect();
+        let mut second: Vec<u64> = seed[n..2 * n].to_vec();
+        first.sort_unstable();
+        second.sort_unstable();
+        let t0: u64 = first.iter().sum();
+        let t1: u64 = second.iter().sum();
+        let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
+        let mut w = first;
+        w.extend(second);
+        let rule = rule_from(n, w, q, shape);
+        let all = (1u32 << n) - 1;
+        for blocking in [false, true] {
+            // In the blocking case a coalition "wins" when its complement loses.
+            let wins = |m: u32| if blocking { !passes_mask(&rule, all & !m) } else { passes_mask(&rule, m) };
+            let mut expected: Vec<u32> = (0..=all)
+                .filter(|&m| wins(m) && (0..n).filter(|i| m & (1 << i) != 0).all(|i| !wins(m & !(1 << i))))
+                .collect();
+            let got = minimal_coalitions::<_, u128>(&rule, blocking, limit, DEFAULT_MAX_NODES).unwrap().unwrap();
+            prop_assert_eq!(got.count, expected.len() as u128);
+            prop_assert_eq!(got.listed.len(), expected.len().min(limit));
+            let masks: Vec<u32> = got.listed.iter().map(|c| c.iter().fold(0u32, |m, &i| m | (1 << i))).collect();
+            for pair in masks.windows(2) {
+                prop_assert!(pair[0].count_ones() <= pair[1].count_ones());
+            }
+            let mut unique = masks.clone();
+            unique.sort_unstable();
+            unique.dedup();
+            prop_assert_eq!(unique.len(), masks.len());
+            expected.sort_by_key(|m| m.count_ones());
+            for m in &masks {
+                prop_assert!(expected.contains(m));
+            }
+            // Fewest first: the listed sizes are the smallest sizes there are.
+            let sizes: Vec<u32> = expected.iter().take(masks.len()).map(|m| m.count_ones()).collect();
+            let listed_sizes: Vec<u32> = masks.iter().map(|m| m.count_ones()).collect();
+            prop_assert_eq!(sizes, listed_sizes);
+        }
+    }
+}
