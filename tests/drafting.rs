@@ -164,3 +164,34 @@ fn union_example_agrees_with_enumeration() {
     let file = clout::compile(include_str!("../examples/union.clout")).unwrap();
     diagram_agrees(&file.rules[0].rule);
 }
+
+/// The order of a rule past the pattern table's limit comes from the
+/// diagram: complete, every class strictly above the later ones, more
+/// populous members first (the core's proptest checks the symmetry test
+/// behind the classes against enumeration).
+#[test]
+fn order_on_the_diagram_matches_the_table() {
+    use clout::drafting::{order, Unwatched};
+    // 27 members with distinct populations: over the table's limit.
+    let file = clout::compile(include_str!("../examples/union.clout")).unwrap();
+    let answer = order(&file, &file.rules[0], &mut Unwatched).unwrap();
+    assert!(answer.complete);
+    assert!(answer.incomparable.is_empty());
+    let k = answer.classes.len();
+    for (a, class) in answer.classes.iter().enumerate() {
+        assert_eq!(class.above, (a + 1..k).collect::<Vec<_>>());
+    }
+    // More populous first.
+    let r = &file.rules[0].rule;
+    let heaviest = (0..r.attributes()).max_by_key(|&a| r.total(a)).unwrap();
+    let population = |i: usize| r.weight(heaviest, i);
+    let flat: Vec<usize> = answer
+        .classes
+        .iter()
+        .flat_map(|c| c.members.indices.clone())
+        .collect();
+    assert_eq!(flat.len(), 27);
+    for w in flat.windows(2) {
+        assert!(population(w[0]) >= population(w[1]));
+    }
+}

@@ -144,7 +144,7 @@ pub struct Loaded {
 /// The fictional example rule files shipped with the package, the demo
 /// (`clout report`'s default) first: (file name, text).
 /// (`treasury.clout` reads a 3,000-row table and is not shipped.)
-pub const EXAMPLES: [(&str, &str); 9] = [
+pub const EXAMPLES: [(&str, &str); 11] = [
     ("transit.clout", include_str!("../../examples/transit.clout")),
     ("council.clout", include_str!("../../examples/council.clout")),
     (
@@ -157,6 +157,11 @@ pub const EXAMPLES: [(&str, &str); 9] = [
         include_str!("../../examples/two-chamber.clout"),
     ),
     ("union.clout", include_str!("../../examples/union.clout")),
+    ("union-30.clout", include_str!("../../examples/union-30.clout")),
+    (
+        "union-30-variant.clout",
+        include_str!("../../examples/union-30-variant.clout"),
+    ),
     ("assembly.clout", include_str!("../../examples/assembly.clout")),
     ("token-dao.clout", include_str!("../../examples/token-dao.clout")),
     (

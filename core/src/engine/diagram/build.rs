@@ -296,6 +296,20 @@ pub(crate) fn build<W: AsRef<[u64]>>(
         within_nodes(total, max_nodes)?;
         current = next;
     }
+    Ok(finish(order, starts, yes, no, &current, |k| k[0] == TRUE_KEY))
+}
+
+/// The diagram from its level-local children and last level, whose nodes
+/// are TRUE where `is_true` says of their keys.
+fn finish(
+    order: Vec<usize>,
+    mut starts: Vec<usize>,
+    mut yes: Vec<u32>,
+    mut no: Vec<u32>,
+    last: &LevelTable,
+    is_true: impl Fn(&[u64]) -> bool,
+) -> Diagram {
+    let n = order.len();
     let base = starts[n];
     // Children ids so far are level-local; make them global.
     for l in 0..n {
@@ -304,17 +318,15 @@ pub(crate) fn build<W: AsRef<[u64]>>(
             no[v] += starts[l + 1] as u32;
         }
     }
-    let last_true = (0..current.len())
-        .map(|id| current.key(id)[0] == TRUE_KEY)
-        .collect();
-    starts.push(base + current.len());
-    Ok(Diagram {
+    let last_true = (0..last.len()).map(|id| is_true(last.key(id))).collect();
+    starts.push(base + last.len());
+    Diagram {
         order,
         starts,
         yes,
         no,
         last_true,
-    })
+    }
 }
 
 /// Whether the rule is proper and strong, from a product diagram of the rule
@@ -448,27 +460,9 @@ pub(crate) fn build_difference<A: AsRef<[u64]>, B: AsRef<[u64]>>(
         within_nodes(total, max_nodes)?;
         current = next;
     }
-    let base = starts[n];
-    for l in 0..n {
-        for v in starts[l]..starts[l + 1] {
-            yes[v] += starts[l + 1] as u32;
-            no[v] += starts[l + 1] as u32;
-        }
-    }
-    let last_true = (0..current.len())
-        .map(|id| {
-            let k = current.key(id);
-            (k[0] == TRUE_KEY) != (k[ma] == TRUE_KEY)
-        })
-        .collect();
-    starts.push(base + current.len());
-    Ok(Diagram {
-        order,
-        starts,
-        yes,
-        no,
-        last_true,
-    })
+    Ok(finish(order, starts, yes, no, &current, |k| {
+        (k[0] == TRUE_KEY) != (k[ma] == TRUE_KEY)
+    }))
 }
 
 /// One rule's part of a product node after `member` (at `level`) votes.

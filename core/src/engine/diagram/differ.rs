@@ -93,3 +93,25 @@ pub fn difference<A: AsRef<[u64]>, B: AsRef<[u64]>, C: Counter>(
     out.smallest = Some(coalition);
     Ok(out)
 }
+
+/// Whether exchanging members `i` and `j` changes no outcome (Isbell's
+/// symmetry), decided exactly on the difference diagram of the rule and the
+/// rule with the two members' weights exchanged.
+pub fn symmetric<W: AsRef<[u64]>>(
+    rule: &Rule<W>,
+    i: usize,
+    j: usize,
+    max_nodes: usize,
+) -> Result<bool, Error> {
+    let n = rule.members();
+    let mut weights = rule.weight_table().to_vec();
+    for a in 0..rule.attributes() {
+        weights.swap(a * n + i, a * n + j);
+    }
+    let swapped = Rule::new(n, weights, rule.atoms(), rule.formula())?;
+    Ok(
+        difference::<_, _, crate::model::count::Count1024>(rule, &swapped, max_nodes)?
+            .coalitions
+            .is_zero(),
+    )
+}

@@ -55,7 +55,7 @@ use crate::model::engine_id::Engine;
 use crate::model::error::Error;
 use crate::model::rule::Rule;
 use build::{build, proper_and_strong};
-pub use differ::{difference, Difference};
+pub use differ::{difference, symmetric, Difference};
 use minimal::{dominance_chain, minimal_counts};
 use paths::count_diagram;
 
@@ -366,4 +366,13 @@ pub fn minimal_coalitions<W: AsRef<[u64]>, C: Counter>(
         listed,
         nodes: d.stats().nodes,
     }))
+}
+
+/// The members most desirable first when their weight vectors (over the
+/// attributes the rule uses) form a chain under componentwise domination:
+/// then every member is at least as desirable as the next (Isbell's
+/// relation is complete). `None` otherwise, or for rules with four-state
+/// conditions.
+pub fn desirability_chain<W: AsRef<[u64]>>(rule: &Rule<W>) -> Option<Vec<usize>> {
+    dominance_chain(rule)
 }

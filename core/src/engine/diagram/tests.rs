@@ -53,6 +53,17 @@ fn rule_from(n: usize, w: Vec<u64>, q: [u64; 3], shape: u8) -> Rule<Vec<u64>> {
     }
 }
 
+/// Quotas of [`rule_from`] at shares (percent) of the two attributes' totals.
+fn quotas_at(n: usize, w: &[u64], shares: &[u64]) -> [u64; 3] {
+    let t0: u64 = w[..n].iter().sum();
+    let t1: u64 = w[n..].iter().sum();
+    [
+        t0 * shares[0] / 100 + 1,
+        t1 * shares[1] / 100,
+        t0 * shares[2] / 100,
+    ]
+}
+
 proptest! {
     #![proptest_config(ProptestConfig { cases: 300, ..ProptestConfig::default() })]
     #[test]
@@ -67,9 +78,7 @@ proptest! {
         // Weights up to 10^15 when `big`: equivalence classes, not weights, size the diagram.
         let scale = if big { 1_000_000_000_000 } else { 1 };
         let w: Vec<u64> = seed[..2 * n].iter().map(|&x| x * scale + x % 7).collect();
-        let t0: u64 = w[..n].iter().sum();
-        let t1: u64 = w[n..].iter().sum();
-        let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
+        let q = quotas_at(n, &w, &shares);
         let rule = rule_from(n, w, q, shape);
         let order = [Order::Declared, Order::HeavyFirst, Order::LightFirst][order as usize];
         let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
@@ -128,11 +137,9 @@ proptest! {
             first = perm.iter().map(|&i| first[i]).collect();
             second = perm.iter().map(|&i| second[i]).collect();
         }
-        let t0: u64 = first.iter().sum();
-        let t1: u64 = second.iter().sum();
-        let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
         let mut w = first;
         w.extend(second);
+        let q = quotas_at(n, &w, &shares);
         let rule = rule_from(n, w, q, shape);
         let (oracle, oracle_members) = count_allocating::<_, u128>(&rule, Engine::Enumerate, Scope::All).unwrap();
         let mut members = vec![MemberCounts::<u128>::EMPTY; n];
@@ -181,14 +188,12 @@ proptest! {
         same in any::<bool>(),
     ) {
         let w: Vec<u64> = seed[..2 * n].iter().map(|&x| x % 17 + x / 500).collect();
-        let t0: u64 = w[..n].iter().sum();
-        let t1: u64 = w[n..].iter().sum();
-        let quotas = |s: &[u64]| [t0 * s[0] / 100 + 1, t1 * s[1] / 100, t0 * s[2] / 100];
+        let quotas = |s: &[u64]| quotas_at(n, &w, s);
         let a = rule_from(n, w.clone(), quotas(&shares_a), shapes.0);
         let b = if same {
             a.clone()
         } else {
-            rule_from(n, w, quotas(&shares_b), shapes.1)
+            rule_from(n, w.clone(), quotas(&shares_b), shapes.1)
         };
         let mut differ = 0u128;
         let mut fewest: Option<u32> = None;
@@ -230,11 +235,9 @@ proptest! {
         let mut second: Vec<u64> = seed[n..2 * n].to_vec();
         first.sort_unstable();
         second.sort_unstable();
-        let t0: u64 = first.iter().sum();
-        let t1: u64 = second.iter().sum();
-        let q = [t0 * shares[0] / 100 + 1, t1 * shares[1] / 100, t0 * shares[2] / 100];
         let mut w = first;
         w.extend(second);
+        let q = quotas_at(n, &w, &shares);
         let rule = rule_from(n, w, q, shape);
         let all = (1u32 << n) - 1;
         for blocking in [false, true] {
@@ -263,5 +266,30 @@ proptest! {
             let listed_sizes: Vec<u32> = masks.iter().map(|m| m.count_ones()).collect();
             prop_assert_eq!(sizes, listed_sizes);
         }
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 200, ..ProptestConfig::default() })]
+    /// Two members are symmetric on the diagram exactly when exchanging them
+    /// changes the outcome of no coalition.
+    #[test]
+    fn symmetry_matches_enumeration(
+        n in 2usize..11,
+        seed in prop::collection::vec(0u64..6, 22),
+        shares in prop::collection::vec(0u64..=100, 3),
+        shape in 0u8..3,
+        pair in (0usize..11, 0usize..11),
+    ) {
+        let (i, j) = (pair.0 % n, pair.1 % n);
+        let w: Vec<u64> = seed[..2 * n].to_vec();
+        let q = quotas_at(n, &w, &shares);
+        let rule = rule_from(n, w, q, shape);
+        let swap = |m: u32| {
+            let (bi, bj) = (m >> i & 1, m >> j & 1);
+            (m & !(1 << i) & !(1 << j)) | (bi << j) | (bj << i)
+        };
+        let expected = (0u32..(1 << n)).all(|m| passes_mask(&rule, m) == passes_mask(&rule, swap(m)));
+        prop_assert_eq!(symmetric(&rule, i, j, DEFAULT_MAX_NODES).unwrap(), expected);
     }
 }
