@@ -12,6 +12,7 @@
 //! * [`drafting`]: the drafter's answers as data (simplify, compare, sweep,
 //!   coalitions, order, fit), the JSON schema of the drafting commands;
 //! * [`toolkit`]: the drafter's methods behind them;
+//! * [`chart`]: the report and the sweep as SVG charts and one self-contained page;
 //! * [`scenarios`]: deterministic fictional bodies for benches, tests, demos.
 
 // The README's Rust examples run as doctests.
@@ -24,6 +25,7 @@ pub use clout_core::*;
 pub use clout_dsl as language;
 pub use clout_dsl::{compile, CompiledRule, Diagnostic, RuleFile};
 
+pub mod chart;
 pub mod decision;
 pub mod drafting;
 mod failure;

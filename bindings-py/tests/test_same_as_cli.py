@@ -84,9 +84,9 @@ def test_drafting(cli, path, rule):
         lambda: f.coalitions(rule, kind="minimal_blocking", limit=7),
     )
     same_or_same_refusal(cli, ["coalitions", *base, "--minimal-winning"], lambda: f.coalitions(rule))
-    # The 30-member unions take a debug build seconds per quota; the sweep of
+    # The 30-member treaties take a debug build seconds per quota; the sweep of
     # the 27-member union stands for them.
-    if not path.stem.startswith("union-30"):
+    if not path.stem.startswith("treaty-30"):
         same_or_same_refusal(
             cli, ["sweep", *base, "--step", "10%"], lambda: f.sweep(rule, step="10%")
         )

@@ -144,7 +144,7 @@ pub struct Loaded {
 /// The fictional example rule files shipped with the package, the demo
 /// (`clout report`'s default) first: (file name, text).
 /// (`treasury.clout` reads a 3,000-row table and is not shipped.)
-pub const EXAMPLES: [(&str, &str); 11] = [
+pub const EXAMPLES: [(&str, &str); 12] = [
     ("transit.clout", include_str!("../../examples/transit.clout")),
     ("council.clout", include_str!("../../examples/council.clout")),
     (
@@ -158,9 +158,10 @@ pub const EXAMPLES: [(&str, &str); 11] = [
     ),
     ("union.clout", include_str!("../../examples/union.clout")),
     ("union-30.clout", include_str!("../../examples/union-30.clout")),
+    ("treaty-30.clout", include_str!("../../examples/treaty-30.clout")),
     (
-        "union-30-variant.clout",
-        include_str!("../../examples/union-30-variant.clout"),
+        "treaty-30-variant.clout",
+        include_str!("../../examples/treaty-30-variant.clout"),
     ),
     ("assembly.clout", include_str!("../../examples/assembly.clout")),
     ("token-dao.clout", include_str!("../../examples/token-dao.clout")),
@@ -269,6 +270,16 @@ impl Loaded {
         let (name, options) = options::report(options)?;
         let rule = self.rule(name.as_deref())?;
         Ok(report::report(&self.file, rule, &options)?)
+    }
+
+    /// The report's chart of power beside weight, as SVG text: exactly the
+    /// library's `chart::report::chart` drawn by `chart::bars::svg`.
+    pub fn report_chart(&self, options: Value) -> Result<String, Box<Thrown>> {
+        let (name, options) = options::report(options)?;
+        let rule = self.rule(name.as_deref())?;
+        let report = report::report(&self.file, rule, &options)?;
+        let chart = clout::chart::report::chart(&self.file, rule, &report, "report");
+        Ok(clout::chart::bars::svg(&chart))
     }
 
     /// One vote: exactly `clout decide --format json`.
@@ -430,6 +441,21 @@ mod tests {
         for (name, text) in EXAMPLES {
             assert!(parse(text).is_ok(), "{name}");
         }
+    }
+
+    #[test]
+    fn report_chart_is_the_librarys_chart() {
+        let loaded = parse(DEMO).unwrap();
+        let svg = loaded.report_chart(json!({"rule": "budget"})).unwrap();
+        let rule = loaded.file.rule(Some("budget")).unwrap();
+        let report = report::report(&loaded.file, rule, &report::Options::default()).unwrap();
+        let chart = clout::chart::report::chart(&loaded.file, rule, &report, "report");
+        assert_eq!(svg, clout::chart::bars::svg(&chart));
+        // One panel per declared weight (seats, riders), four rows in each.
+        assert_eq!(svg.matches(r#"<g class="panel""#).count(), 2);
+        assert_eq!(svg.matches(r#"<g class="row""#).count(), 8);
+        let e = loaded.report_chart(json!({"rule": "nope"})).err().unwrap();
+        assert_eq!(e.message, "no rule named `nope`");
     }
 
     #[test]

@@ -134,6 +134,14 @@ impl RuleFile {
         relay(options, |o| self.inner.report(o))
     }
 
+    /// The chart of power beside weight as SVG text, as `clout report --svg`
+    /// draws it (same options as `report`).
+    #[wasm_bindgen(js_name = reportChart, skip_typescript)]
+    pub fn report_chart(&self, options: Option<JsValue>) -> Result<String, JsValue> {
+        let options = from_js(options)?;
+        self.inner.report_chart(options).map_err(throw)
+    }
+
     /// The outcome of one vote, as `clout decide --format json` gives it.
     #[wasm_bindgen(skip_typescript)]
     pub fn decide(&self, ballot: Option<JsValue>) -> Result<JsValue, JsValue> {

@@ -14,6 +14,8 @@ export interface RuleFile {
   plan(options?: ReportOptions): Plan;
   /** The power report, as `clout report --format json` gives it. */
   report(options?: ReportOptions): Report;
+  /** The chart of power beside weight as SVG text, as `clout report --svg` draws it. */
+  reportChart(options?: ReportOptions): string;
   /** The outcome of one vote, as `clout decide --format json` gives it. */
   decide(ballot?: Ballot): Decision;
   /** The rule's binary image for devices and the C ABI (`clout compile`). */

@@ -221,6 +221,19 @@ test('interchangeable rows and weight shares describe the rule', () => {
   assert.equal(outline.groups[0].members.length, 12);
 });
 
+test('reportChart is the SVG that clout report --svg writes', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'clout-wasm-chart-'));
+  try {
+    const path = join(dir, 'chart.svg');
+    const r = clout(['report', 'examples/transit.clout', '--rule', 'closure', '--svg', path]);
+    assert.equal(r.code, 0, r.stderr);
+    const file = parseExample(pkg, 'transit.clout');
+    assert.equal(file.reportChart({ rule: 'closure' }), readFileSync(path, 'utf8'));
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+});
+
 test("the README's JavaScript example runs", () => {
   const readme = readFileSync(join(root, 'README.md'), 'utf8');
   const section = readme.slice(readme.indexOf('<!-- wasm:begin -->'), readme.indexOf('<!-- wasm:end -->'));

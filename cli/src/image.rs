@@ -27,8 +27,7 @@ pub fn compile(args: &CompileArgs) -> Result<Outcome, Failure> {
         ));
     }
     let out = output_path(args, s.file.as_deref(), &rule.name);
-    std::fs::write(&out, &bytes)
-        .map_err(|e| Failure::input(format!("cannot write {}: {e}", out.display())))?;
+    crate::write_file(&out, &bytes)?;
     Ok(Outcome::ok(format!(
         "wrote {} ({} bytes): rule `{}`, {} members, {} conditions, CRC-32 checked on load\n",
         out.display(),

@@ -120,6 +120,13 @@ struct ReportArgs {
     /// and then votes yes or no with equal chance.
     #[arg(long, value_name = "P")]
     attendance: Option<f64>,
+    /// Also write the chart of power beside weight as SVG to this file.
+    #[arg(long, value_name = "PATH")]
+    svg: Option<std::path::PathBuf>,
+    /// Also write the whole report (rule, chart, tables, model and caution) as one
+    /// self-contained HTML page to this file.
+    #[arg(long, value_name = "PATH")]
+    html: Option<std::path::PathBuf>,
 }
 
 /// A byte count such as `2GiB`, `512MiB`, `64KiB` or `1000000`.
@@ -283,6 +290,16 @@ impl Failure {
     fn rendered(message: String) -> Self {
         Failure { message, code: 2 }
     }
+}
+
+/// Writes a file the user asked for (`--svg`, `--html`, `-o`).
+fn write_file(path: &std::path::Path, contents: &[u8]) -> Result<(), Failure> {
+    std::fs::write(path, contents).map_err(|e| {
+        Failure::input(format!(
+            "cannot write `{}`: {e}\n  = hint: check that its folder exists and can be written",
+            path.display()
+        ))
+    })
 }
 
 impl From<clout::Failure> for Failure {

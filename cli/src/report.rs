@@ -10,6 +10,7 @@
 
 use std::fmt::Write;
 
+use clout::chart::{self, page::Block};
 use clout::report::{self, bytes, interchangeable, reason, MemberReport, Method, Options, Report};
 use clout_dsl::exact;
 use clout_dsl::{AttributeKind, CompiledRule};
@@ -57,9 +58,28 @@ pub fn run(args: &ReportArgs) -> Result<Outcome, Failure> {
     };
     let report = with_progress(&label, || report::build(&input.file, rule, &method, &options))
         .map_err(Failure::from)?;
+    let text = if report.approximate {
+        approximate_text(&input, &report)
+    } else {
+        text_report(&input, rule, &report)
+    };
+    let mut written = String::new();
+    if let Some(path) = &args.svg {
+        let mut c = chart::report::chart(&input.file, rule, &report, "report");
+        c.title = format!("{}: rule `{}`: power beside weight", input.title(), rule.name);
+        crate::write_file(path, chart::bars::svg(&c).as_bytes())?;
+        let _ = writeln!(written, "Chart written to {}.", path.display());
+    }
+    if let Some(path) = &args.html {
+        let mut page = chart::report::page(&input.file, rule, &report);
+        page.title = format!("{}: rule `{}`", input.title(), rule.name);
+        page.blocks.push(Block::Heading("The report as text".to_string()));
+        page.blocks.push(Block::Code(text.clone()));
+        crate::write_file(path, chart::page::xhtml(&page).as_bytes())?;
+        let _ = writeln!(written, "Page written to {}.", path.display());
+    }
     let out = match args.format {
-        Format::Text if report.approximate => approximate_text(&input, &report),
-        Format::Text => text_report(&input, rule, &report),
+        Format::Text => text + &written,
         Format::Json => json(&report),
         Format::Csv => csv_report(&report),
     };

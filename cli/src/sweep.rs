@@ -1,14 +1,16 @@
 //! `clout sweep`: every member's Banzhaf and Shapley-Shubik index and the
 //! probability of passage as the quota of the rule's conditions on one
 //! attribute moves, as a text table, CSV, and an SVG chart. Members with
-//! identical weights form one series. See `clout::toolkit::sweep`.
+//! equal figures at every quota form one series; the text table is cut into
+//! runs of columns that fit 100 characters. See `clout::toolkit::sweep` and
+//! `clout::chart::lines`.
 
 use std::fmt::Write;
 use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
+use clout::chart::lines::{self, Chart, Marker, Panel, Series};
 use clout::drafting::{self as answers, Sweep, SweepOptions, SweepPoint};
-use clout::toolkit::chart::{self, Chart, Panel, Series};
 use clout::toolkit::sweep::Level;
 
 use crate::drafting::{self, label, names};
@@ -86,6 +88,15 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
     let share = |q: u64| q as f64 / total as f64 * 100.0;
     if let Some(path) = &args.svg {
         let moved: Vec<&str> = answer.conditions.iter().map(|c| c.text.as_str()).collect();
+        // The rule's own quotas of the moved conditions, one mark each.
+        let mut own: Vec<u64> = answer
+            .conditions
+            .iter()
+            .filter_map(|c| rule.rule.atoms().get(c.number - 1))
+            .map(|a| a.quota)
+            .collect();
+        own.sort_unstable();
+        own.dedup();
         let c = Chart {
             title: format!("{}, rule `{}`: power as the quota of {attr_name} moves", input.title(), rule.name),
             note: format!(
@@ -106,9 +117,15 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
                     shared: false,
                 },
             ],
+            markers: own
+                .iter()
+                .map(|&q| Marker {
+                    x: share(q),
+                    label: format!("the rule's quota: {:.1}% ({})", share(q), drafting::thousands(q)),
+                })
+                .collect(),
         };
-        std::fs::write(path, chart::svg(&c))
-            .map_err(|e| Failure::input(format!("cannot write `{}`: {e}", path.display())))?;
+        crate::write_file(path, lines::svg(&c).as_bytes())?;
     }
     let out = match args.format {
         SweepFormat::Json => json(&answer),
@@ -159,7 +176,7 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
                     }
                     t.push(row);
                 }
-                out.push_str(&t.render());
+                out.push_str(&t.render_within(WIDTH, if pick == 0 { 3 } else { 2 }));
                 out.push('\n');
             }
             if let Some(path) = &args.svg {
@@ -174,6 +191,9 @@ pub fn run(args: &SweepArgs) -> Result<Outcome, Failure> {
     };
     Ok(Outcome::ok(out))
 }
+
+/// Widest line of the text tables.
+const WIDTH: usize = 100;
 
 fn panel(
     title: &str,

@@ -92,9 +92,10 @@ impl Table {
         self.rows.push(row);
     }
 
-    pub fn render(&self) -> String {
+    /// Each column's width: its widest cell or heading.
+    fn widths(&self) -> Vec<usize> {
         let width = |s: &str| s.chars().count();
-        let widths: Vec<usize> = (0..self.columns.len())
+        (0..self.columns.len())
             .map(|c| {
                 self.rows
                     .iter()
@@ -104,7 +105,60 @@ impl Table {
                     .max()
                     .unwrap_or(0)
             })
-            .collect();
+            .collect()
+    }
+
+    /// As [`Self::render`] when it fits in `max_width` characters; else the
+    /// columns after the first `keep` are cut into runs that fit, and each run
+    /// is printed as a table of its own after the `keep` columns, with a line
+    /// saying which columns it holds.
+    pub fn render_within(&self, max_width: usize, keep: usize) -> String {
+        let widths = self.widths();
+        let keep = keep.min(widths.len());
+        let fixed: usize = widths[..keep].iter().map(|w| w + 2).sum();
+        let mut runs: Vec<Vec<usize>> = Vec::new();
+        let mut used = fixed;
+        for (c, &w) in widths.iter().enumerate().skip(keep) {
+            match runs.last_mut() {
+                Some(run) if used + w <= max_width => run.push(c),
+                _ => {
+                    runs.push(vec![c]);
+                    used = fixed;
+                }
+            }
+            used += w + 2;
+        }
+        if runs.len() <= 1 {
+            return self.render();
+        }
+        let total = widths.len() - keep;
+        let mut out = String::new();
+        for (k, run) in runs.iter().enumerate() {
+            let pick: Vec<usize> = (0..keep).chain(run.iter().copied()).collect();
+            let mut part = Table::new(pick.iter().map(|&c| self.columns[c].clone()).collect());
+            for r in &self.rows {
+                part.push(
+                    pick.iter()
+                        .map(|&c| r.get(c).cloned().unwrap_or_default())
+                        .collect(),
+                );
+            }
+            if k > 0 {
+                out.push('\n');
+            }
+            out.push_str(&format!(
+                "(columns {}-{} of {total})\n",
+                run[0] - keep + 1,
+                run[run.len() - 1] - keep + 1
+            ));
+            out.push_str(&part.render());
+        }
+        out
+    }
+
+    pub fn render(&self) -> String {
+        let width = |s: &str| s.chars().count();
+        let widths = self.widths();
         let line = |cells: Vec<&str>| {
             let mut out = String::new();
             for (c, cell) in cells.iter().enumerate() {
@@ -138,6 +192,26 @@ impl Table {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn wide_tables_are_cut_into_runs_that_fit() {
+        let mut t = Table::new(
+            ["q", "aaaa", "bbbb", "cccc"]
+                .iter()
+                .map(|h| (h.to_string(), Align::Right))
+                .collect(),
+        );
+        t.push(vec!["1".into(), "0.1".into(), "0.2".into(), "0.3".into()]);
+        assert_eq!(t.render_within(100, 1), t.render());
+        // "q" + 2 + "aaaa" + 2 + "bbbb" = 13 fits 13; "cccc" goes on.
+        assert_eq!(
+            t.render_within(13, 1),
+            "(columns 1-2 of 3)\nq  aaaa  bbbb\n1   0.1   0.2\n\n(columns 3-3 of 3)\nq  cccc\n1   0.3\n"
+        );
+        for line in t.render_within(13, 1).lines() {
+            assert!(line.chars().count() <= 18);
+        }
+    }
 
     #[test]
     fn separators_and_rounding() {

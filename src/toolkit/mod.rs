@@ -9,7 +9,6 @@
 //! | [`desirability`] | Isbell's desirability relation, symmetric classes | O(m^2 P) |
 //! | [`compare`] | same simple game? a smallest coalition where two rules differ | O(P m) |
 //! | [`sweep`] | indices and probability of passage as a quota moves | one exact analysis per point |
-//! | [`chart`] | the sweep as an SVG chart | O(points * series) |
 //! | [`fit`] | integer weights and a quota whose Banzhaf index is closest to a target | a work budget |
 //! | [`coalitions`] | minimal winning and minimal blocking coalitions, listed and counted | O(P m) |
 //!
@@ -28,7 +27,6 @@
 //! were checked to win and lose and to hold every member equally often.
 //! Counts of coalitions are exact integers (the core's wide counters).
 
-pub mod chart;
 pub mod coalitions;
 pub mod compare;
 pub mod desirability;
