@@ -11,11 +11,10 @@ use std::fmt::Write;
 
 use clout::decision::{self, Decision, NamedBallot};
 use clout::record::{self, Record};
-use clout_dsl::data::MAX_TABLE_LEN;
 use clout_dsl::quote::{shown as safe, split_list, written};
 use clout_dsl::CompiledRule;
 
-use crate::input::{read_bounded, Input};
+use crate::input::Input;
 use crate::report::json;
 use crate::text::{self, Align, Table};
 use crate::{DecideArgs, DecideFormat, Failure, Outcome, Rest};
@@ -62,19 +61,9 @@ fn run_record(
     rule: &CompiledRule,
     path: &std::path::Path,
 ) -> Result<Outcome, Failure> {
-    let shown = path.display().to_string();
-    let bytes = std::fs::File::open(path)
-        .and_then(|f| read_bounded(f, MAX_TABLE_LEN))
-        .map_err(|e| Failure::input(format!("cannot read `{shown}`: {e}")))?;
-    let motions = record::read(&input.file, &shown, &bytes).map_err(|errors| {
-        let mut text = clout_dsl::render_all(&errors, &shown, "");
-        let n = clout_dsl::error_count(&errors);
-        text.push_str(&format!(
-            "{n} error{} in {shown}\n",
-            if n == 1 { "" } else { "s" }
-        ));
-        Failure::rendered(text)
-    })?;
+    let (shown, bytes) = crate::input::read_data_file(path)?;
+    let motions = record::read(&input.file, &shown, &bytes)
+        .map_err(|errors| crate::input::rendered_errors(&errors, &shown, ""))?;
     // A rule of the same file, or another file.
     let other_input;
     let other = match &args.against {

@@ -85,12 +85,7 @@ impl Input {
                 file,
                 demo,
             }),
-            Err(errors) => {
-                let mut text = render_all(&errors, &name, &source);
-                let n = clout_dsl::error_count(&errors);
-                text.push_str(&format!("{n} error{} in {name}\n", if n == 1 { "" } else { "s" }));
-                Err(Failure::rendered(text))
-            }
+            Err(errors) => Err(rendered_errors(&errors, &name, &source)),
         }
     }
 
@@ -121,6 +116,25 @@ impl Input {
         };
         clout::escape::terminal(&title).into_owned()
     }
+}
+
+/// Every error of `name` rendered against `source`, with the count line
+/// the command prints under them.
+pub fn rendered_errors(errors: &[clout_dsl::Diagnostic], name: &str, source: &str) -> Failure {
+    let mut text = render_all(errors, name, source);
+    let n = clout_dsl::error_count(errors);
+    text.push_str(&format!("{n} error{} in {name}\n", if n == 1 { "" } else { "s" }));
+    Failure::rendered(text)
+}
+
+/// A data file given on the command line (`--ballots`, `--chances`): its
+/// name as shown in messages and at most [`MAX_TABLE_LEN`] + 1 bytes.
+pub fn read_data_file(path: &Path) -> Result<(String, Vec<u8>), Failure> {
+    let shown = path.display().to_string();
+    let bytes = std::fs::File::open(path)
+        .and_then(|f| read_bounded(f, MAX_TABLE_LEN))
+        .map_err(|e| Failure::input(format!("cannot read `{shown}`: {e}")))?;
+    Ok((shown, bytes))
 }
 
 /// The bytes as text, or the error at the first byte that is not UTF-8 (or past the size limit).

@@ -105,19 +105,9 @@ fn voting_model(input: &Input, args: &ReportArgs) -> Result<Option<VotingModel>,
     let Some(path) = &args.chances else {
         return Ok(None);
     };
-    let shown = path.display().to_string();
-    let bytes = std::fs::File::open(path)
-        .and_then(|f| crate::input::read_bounded(f, clout_dsl::data::MAX_TABLE_LEN))
-        .map_err(|e| Failure::input(format!("cannot read `{shown}`: {e}")))?;
-    let chances = model::read_chances(&input.file, &shown, &bytes).map_err(|errors| {
-        let mut text = clout_dsl::render_all(&errors, &shown, "");
-        let n = clout_dsl::error_count(&errors);
-        text.push_str(&format!(
-            "{n} error{} in {shown}\n",
-            if n == 1 { "" } else { "s" }
-        ));
-        Failure::rendered(text)
-    })?;
+    let (shown, bytes) = crate::input::read_data_file(path)?;
+    let chances = model::read_chances(&input.file, &shown, &bytes)
+        .map_err(|errors| crate::input::rendered_errors(&errors, &shown, ""))?;
     Ok(Some(VotingModel::Chances { file: shown, chances }))
 }
 
